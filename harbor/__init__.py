@@ -1,0 +1,11 @@
+"""harbor: wave diffraction screening for harbour layouts.
+
+Preliminary results only; final design belongs to licensed coastal engineers under
+local codes.
+"""
+
+__version__ = "0.1.0"
+
+from harbor.waves import wavelength, wavenumber  # noqa: E402
+
+__all__ = ["__version__", "wavelength", "wavenumber"]
