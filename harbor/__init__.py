@@ -6,6 +6,7 @@ local codes.
 
 __version__ = "0.1.0"
 
+from harbor.solver.kernels import gap, semi_infinite  # noqa: E402
 from harbor.waves import wavelength, wavenumber  # noqa: E402
 
-__all__ = ["__version__", "wavelength", "wavenumber"]
+__all__ = ["__version__", "gap", "semi_infinite", "wavelength", "wavenumber"]

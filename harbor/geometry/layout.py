@@ -85,3 +85,62 @@ class Layout:
 
     arms: tuple = field(default_factory=tuple)
     lands: tuple = field(default_factory=tuple)
+
+    # Helpers (geometry only). The data fields above are the contract; these read them.
+
+    def heads(self):
+        """Return the free (diffracting) heads of all arms.
+
+        Returns
+        -------
+        list of tuple
+            ``(arm_name, end, tip, inward)`` with ``end`` ``"start"`` or ``"end"``,
+            ``tip`` the head's position (m, work frame) and ``inward`` the unit vector
+            from the tip along its end segment into the arm.
+        """
+        out = []
+        for arm in self.arms:
+            ends = [e for e, rooted in (("start", arm.rooted_start),
+                                        ("end", arm.rooted_end)) if not rooted]
+            for end, (tip, inward) in zip(ends, arm.heads()):
+                out.append((arm.name, end, tip, inward))
+        return out
+
+    def bounds(self) -> tuple:
+        """Bounding box ``(xmin, ymin, xmax, ymax)`` of the arms (m, work frame);
+        land is left out because a shore polygon may extend far inland."""
+        if not self.arms:
+            raise ValueError("the layout has no arms")
+        pts = np.concatenate([np.asarray(a.line, float) for a in self.arms])
+        return (float(pts[:, 0].min()), float(pts[:, 1].min()),
+                float(pts[:, 0].max()), float(pts[:, 1].max()))
+
+    def land_union(self):
+        """All land polygons as one shapely geometry (an empty polygon when none)."""
+        if not self.lands:
+            return shapely.Polygon()
+        return shapely.union_all([land.outline for land in self.lands])
+
+    def arms_union(self):
+        """All arms as one shapely geometry (a MultiLineString)."""
+        return shapely.MultiLineString([np.asarray(a.line, float) for a in self.arms])
+
+    def in_land(self, x, y):
+        """Whether points lie on land (inside or on the boundary of a land polygon).
+
+        Parameters
+        ----------
+        x, y : float or array_like
+            Work-frame coordinates, m (broadcast together).
+
+        Returns
+        -------
+        numpy.ndarray of bool
+            True on land.
+        """
+        x, y = np.broadcast_arrays(np.asarray(x, float), np.asarray(y, float))
+        out = np.zeros(x.shape, bool)
+        for land in self.lands:
+            shapely.prepare(land.outline)
+            out |= shapely.intersects_xy(land.outline, x, y)
+        return out

@@ -6,9 +6,23 @@ outputs. ``load_scenario`` (below) reads and validates a file.
 
 from __future__ import annotations
 
+import difflib
+import math
+import numbers
 from dataclasses import dataclass, field
+from pathlib import Path
 
-from harbor.geometry.layout import Layout, Point
+import numpy as np
+import shapely
+
+try:  # Python >= 3.11
+    import tomllib as _toml
+except ModuleNotFoundError:  # pragma: no cover - Python 3.10
+    import tomli as _toml
+
+from harbor.errors import InputError
+from harbor.geometry.layout import Arm, Land, Layout, Point
+from harbor.geometry.site import Site, lonlat_problem, parse_crs
 
 
 @dataclass(frozen=True)
@@ -88,3 +102,541 @@ class Scenario:
             if s.name == name:
                 return s
         raise KeyError(name)
+
+
+# ---------------------------------------------------------------------------------------
+# Reading and validation
+# ---------------------------------------------------------------------------------------
+
+#: Largest grid (number of points) a scenario may ask for; a complex field of this size
+#: and its work arrays take a few hundred MB.
+MAX_GRID_POINTS = 4_000_000
+
+_KEYS = {
+    "top": ("title", "site", "arm", "land", "sea", "point", "grid"),
+    "site": ("crs", "depth", "g"),
+    "arm": ("name", "line", "rooted"),
+    "land": ("name", "outline"),
+    "sea": ("name", "kind", "height", "period", "from", "spreading", "spectrum",
+            "peak_period", "gamma"),
+    "point": ("name", "at", "limit"),
+    "grid": ("spacing", "bounds"),
+}
+_KINDS = ("regular", "random")
+_SPECTRA = ("bretschneider-mitsuyasu", "jonswap")
+_ROOTED = ("start", "end", "both", "none")
+
+
+class _Reader:
+    """Validation helpers that remember the file name for every message."""
+
+    def __init__(self, file: str):
+        self.file = file or None
+
+    def err(self, problem, where=None, key=None):
+        return InputError(problem, file=self.file, where=where, key=key)
+
+    def check_keys(self, table: dict, kind: str, where: str | None):
+        allowed = _KEYS[kind]
+        for k in table:
+            if k not in allowed:
+                near = difflib.get_close_matches(str(k), allowed, n=1, cutoff=0.5)
+                hint = (f"; did you mean '{near[0]}'?" if near else
+                        f"; valid keys: {', '.join(allowed)}")
+                raise self.err(f"unknown key{hint}", where, str(k))
+
+    def number(self, table, key, where, *, required=True, default=None,
+               positive=False, lo=None, hi=None):
+        if key not in table:
+            if required:
+                raise self.err("missing key", where, key)
+            return default
+        v = table[key]
+        if isinstance(v, bool) or not isinstance(v, numbers.Real):
+            raise self.err(f"must be a number, got {_show(v)}", where, key)
+        v = float(v)
+        if not math.isfinite(v):
+            raise self.err(f"must be a finite number, got {v}", where, key)
+        if positive and v <= 0:
+            raise self.err(f"must be positive, got {v:g}", where, key)
+        if lo is not None and hi is not None and not (lo <= v <= hi):
+            raise self.err(f"must be between {lo:g} and {hi:g}, got {v:g}", where, key)
+        return v
+
+    def string(self, table, key, where, *, required=True, default=None, choices=None):
+        if key not in table:
+            if required:
+                raise self.err("missing key", where, key)
+            return default
+        v = table[key]
+        if not isinstance(v, str):
+            raise self.err(f"must be a string, got {_show(v)}", where, key)
+        if not v.strip():
+            raise self.err("must not be empty", where, key)
+        if choices is not None and v not in choices:
+            near = difflib.get_close_matches(v, choices, n=1, cutoff=0.5)
+            hint = f"; did you mean '{near[0]}'?" if near else ""
+            raise self.err(f"unknown value {v!r}{hint} (expected one of "
+                           f"{', '.join(repr(c) for c in choices)})", where, key)
+        return v
+
+    def xy(self, v, where, key, label=""):
+        if (not isinstance(v, (list, tuple, np.ndarray)) or len(v) != 2
+                or any(isinstance(c, bool) or not isinstance(c, numbers.Real) for c in v)):
+            raise self.err(f"{label}must be a pair of numbers [x, y], got {_show(v)}",
+                           where, key)
+        x, y = float(v[0]), float(v[1])
+        if not (math.isfinite(x) and math.isfinite(y)):
+            raise self.err(f"{label}coordinates must be finite, got {_show(v)}", where,
+                           key)
+        return x, y
+
+    def polyline(self, table, key, where, min_len):
+        if key not in table:
+            raise self.err("missing key", where, key)
+        v = table[key]
+        if not isinstance(v, (list, tuple, np.ndarray)) or len(v) < min_len:
+            raise self.err(f"must be a list of at least {min_len} [x, y] pairs, got "
+                           f"{_show(v)}", where, key)
+        return np.array([self.xy(p, where, key, f"vertex {i + 1}: ")
+                         for i, p in enumerate(v)], float)
+
+    def tables(self, data, kind):
+        v = data.get(kind, [])
+        if isinstance(v, dict):
+            raise self.err(f"write [[{kind}]] (double brackets: an array of tables, "
+                           f"one per {kind}), not [{kind}]", None, kind)
+        if not isinstance(v, (list, tuple)) or not all(isinstance(t, dict) for t in v):
+            raise self.err(f"must be an array of tables [[{kind}]]", None, kind)
+        return list(v)
+
+
+def _show(v) -> str:
+    s = repr(v)
+    return s if len(s) <= 60 else s[:57] + "..."
+
+
+def _label(kind: str, table: dict, i: int) -> str:
+    name = table.get("name")
+    if isinstance(name, str) and name.strip():
+        return f"[[{kind}]] '{name}'"
+    return f"[[{kind}]] #{i + 1}"
+
+
+def load_scenario(path) -> Scenario:
+    """Read and validate a scenario file (TOML).
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The scenario file.
+
+    Returns
+    -------
+    Scenario
+        Validated scenario; all coordinates in the site's work frame (m).
+
+    Raises
+    ------
+    InputError
+        For a missing or unreadable file, a TOML syntax error (with its line) or any
+        problem found by :func:`scenario_from_dict`.
+
+    Notes
+    -----
+    The keys are those of the design (§5): ``title``; ``[site]`` crs, depth, g;
+    ``[[arm]]`` name, line, rooted; ``[[land]]`` name, outline; ``[[sea]]`` name, kind,
+    height, period, from, spreading, spectrum, peak_period, gamma; ``[[point]]`` name,
+    at, limit; ``[grid]`` spacing, bounds.
+
+    References
+    ----------
+    Preston-Werner, T. et al. (2021). TOML v1.0.0. https://toml.io/en/v1.0.0
+    """
+    p = Path(path)
+    file = str(path)
+    if not p.exists():
+        raise InputError("file not found", file=file)
+    if p.is_dir():
+        raise InputError("is a directory, not a scenario file", file=file)
+    try:
+        text = p.read_bytes().decode("utf-8")
+    except UnicodeDecodeError:
+        raise InputError("not UTF-8 text (a TOML file must be UTF-8)", file=file) from None
+    except OSError as e:
+        raise InputError(f"cannot read the file ({e.strerror})", file=file) from None
+    try:
+        data = _toml.loads(text)
+    except _toml.TOMLDecodeError as e:
+        msg = str(e)
+        if "(at end of document)" in msg:
+            msg += (f"; something opened before line {text.count(chr(10)) + 1} is never "
+                    "closed (a bracket or a quote)")
+        raise InputError(f"TOML syntax error: {msg}", file=file) from None
+    return scenario_from_dict(data, path=file)
+
+
+def scenario_from_dict(data: dict, path: str = "") -> Scenario:
+    """Validate a scenario given as a dictionary (the parsed TOML) and build it.
+
+    Parameters
+    ----------
+    data : dict
+        The scenario, with the keys of the TOML file (see :func:`load_scenario`).
+        Coordinates are in the CRS of ``data["site"]["crs"]``, easting or longitude
+        first.
+    path : str, optional
+        The file it came from, used in messages and kept in ``Scenario.path``.
+
+    Returns
+    -------
+    Scenario
+        ``layout`` arms, land, ``points`` and ``grid.bounds`` in the work frame (m).
+
+    Raises
+    ------
+    InputError
+        Naming the file, the table and the key, for: unknown keys (with the nearest
+        valid key), missing keys, wrong types, non-positive depth, g, height, period,
+        spacing or limit, directions outside [0, 360], unknown sea kinds, spectra or
+        ``rooted`` values, arms with fewer than two distinct vertices, arms that cross
+        themselves or each other, invalid land outlines, unknown or unsupported CRS,
+        lon/lat out of range (a swapped pair is pointed out), duplicate names, points
+        on land or on an arm, grids of more than ``MAX_GRID_POINTS`` points (with a
+        spacing that fits), no sea states, no arms.
+
+    Notes
+    -----
+    - An arm end inside or on a land polygon, or on another arm (a junction), is rooted
+      and does not diffract; the tolerance is max(0.01 m, 1e-6 × layout size).
+      ``rooted`` ("start", "end", "both", "none") overrides.
+    - Default grid bounds: the box around arms and points padded on every side by
+      max(20 % of its larger side, 50 m); land is left out so that a large shore
+      polygon does not inflate the grid.
+    - Without a ``[grid]`` table the spacing defaults to a tenth of the shortest
+      wavelength of the sea states at the site depth, rounded down to 1, 2, 2.5 or
+      5 × 10^n m (about ten points per wavelength: common practice), coarsened if
+      needed to stay within ``MAX_GRID_POINTS``.
+    - Arms may touch end-to-end or end-to-side; they must not cross or overlap.
+    """
+    r = _Reader(path)
+    if not isinstance(data, dict):
+        raise r.err("the scenario must be a table of keys")
+    r.check_keys(data, "top", None)
+
+    title = r.string(data, "title", None, required=False,
+                     default=Path(path).stem if path else "untitled")
+
+    # --- [site] ----------------------------------------------------------------------
+    if "site" not in data:
+        raise r.err("missing table [site] (with crs and depth)", None, "site")
+    site_t = data["site"]
+    if not isinstance(site_t, dict):
+        raise r.err("must be a table [site]", None, "site")
+    r.check_keys(site_t, "site", "[site]")
+    crs_code = r.string(site_t, "crs", "[site]")
+    depth = r.number(site_t, "depth", "[site]", positive=True)
+    g = r.number(site_t, "g", "[site]", required=False, default=9.81, positive=True)
+    try:
+        crs = parse_crs(crs_code)
+    except InputError as e:
+        raise r.err(e.problem, "[site]", "crs") from None
+    lonlat = bool(crs.is_geographic)
+
+    # --- raw tables (scenario CRS) ------------------------------------------------------
+    arm_ts = r.tables(data, "arm")
+    land_ts = r.tables(data, "land")
+    sea_ts = r.tables(data, "sea")
+    point_ts = r.tables(data, "point")
+    if not arm_ts:
+        raise r.err("the scenario has no [[arm]]; at least one breakwater arm is "
+                    "needed", None, "arm")
+    if not sea_ts:
+        raise r.err("the scenario has no [[sea]]; at least one sea state is needed",
+                    None, "sea")
+
+    raw_arms = []
+    for i, t in enumerate(arm_ts):
+        where = _label("arm", t, i)
+        r.check_keys(t, "arm", where)
+        name = r.string(t, "name", where, required=False, default=f"arm {i + 1}")
+        line = r.polyline(t, "line", where, 2)
+        rooted = r.string(t, "rooted", where, required=False, choices=_ROOTED)
+        raw_arms.append((where, name, line, rooted))
+    _unique(r, [(w, n) for w, n, _, _ in raw_arms], "arm")
+
+    raw_lands = []
+    for i, t in enumerate(land_ts):
+        where = _label("land", t, i)
+        r.check_keys(t, "land", where)
+        name = r.string(t, "name", where, required=False, default=f"land {i + 1}")
+        outline = r.polyline(t, "outline", where, 3)
+        raw_lands.append((where, name, outline))
+
+    seas = []
+    for i, t in enumerate(sea_ts):
+        seas.append(_read_sea(r, t, i))
+    _unique(r, [(_label("sea", t, i), s.name) for i, (t, s) in
+                enumerate(zip(sea_ts, seas))], "sea")
+
+    raw_points = []
+    for i, t in enumerate(point_ts):
+        where = _label("point", t, i)
+        r.check_keys(t, "point", where)
+        name = r.string(t, "name", where)
+        if "at" not in t:
+            raise r.err("missing key", where, "at")
+        at = np.array([r.xy(t["at"], where, "at")], float)
+        limit = r.number(t, "limit", where, required=False, positive=True)
+        raw_points.append((where, name, at, limit))
+    _unique(r, [(w, n) for w, n, _, _ in raw_points], "point")
+
+    grid_t = data.get("grid")
+    raw_bounds = None
+    spacing = None
+    if grid_t is not None:
+        if not isinstance(grid_t, dict):
+            raise r.err("must be a table [grid]", None, "grid")
+        r.check_keys(grid_t, "grid", "[grid]")
+        spacing = r.number(grid_t, "spacing", "[grid]", positive=True)
+        if "bounds" in grid_t:
+            b = grid_t["bounds"]
+            if (not isinstance(b, (list, tuple)) or len(b) != 4 or
+                    any(isinstance(c, bool) or not isinstance(c, numbers.Real)
+                        or not math.isfinite(c) for c in b)):
+                raise r.err(f"must be four numbers [xmin, ymin, xmax, ymax], got "
+                            f"{_show(b)}", "[grid]", "bounds")
+            raw_bounds = [float(c) for c in b]
+            if not (raw_bounds[0] < raw_bounds[2] and raw_bounds[1] < raw_bounds[3]):
+                raise r.err("must be [xmin, ymin, xmax, ymax] with xmin < xmax and "
+                            f"ymin < ymax, got {_show(b)}", "[grid]", "bounds")
+
+    # --- coordinates in range for the CRS -----------------------------------------------
+    coord_sets = ([(w, "line", a) for w, _, a, _ in raw_arms]
+                  + [(w, "outline", a) for w, _, a in raw_lands]
+                  + [(w, "at", a) for w, _, a, _ in raw_points])
+    if raw_bounds is not None:
+        coord_sets.append(("[grid]", "bounds",
+                           np.array([raw_bounds[:2], raw_bounds[2:]], float)))
+    if lonlat:
+        for where, key, arr in coord_sets:
+            for j, (lon, lat) in enumerate(arr):
+                problem = lonlat_problem(lon, lat)
+                if problem:
+                    pre = f"vertex {j + 1}: " if len(arr) > 1 and key != "bounds" else ""
+                    raise r.err(pre + problem, where, key)
+    else:
+        for where, _, a, _ in raw_arms:
+            # Nobody builds a breakwater shorter than one metre (or foot): such an arm
+            # is almost surely lon/lat written under a projected CRS.
+            if (np.all(np.abs(a[:, 0]) <= 180) and np.all(np.abs(a[:, 1]) <= 90)
+                    and np.ptp(a, axis=0).max() < 1.0):
+                raise r.err(f"the arm is shorter than one unit of {crs_code}; its "
+                            "coordinates look like longitude/latitude: set crs = "
+                            "\"EPSG:4326\" in [site] or give coordinates in the CRS",
+                            where, "line")
+
+    anchor = np.concatenate([a for _, _, a, _ in raw_arms]).mean(axis=0)
+    try:
+        site = Site(crs_code, (float(anchor[0]), float(anchor[1])), depth, g)
+    except InputError as e:
+        raise r.err(e.problem, "[site]", "crs") from None
+
+    def work(where, key, arr):
+        xw, yw = site.to_work(arr[:, 0], arr[:, 1])
+        out = np.column_stack([np.atleast_1d(xw), np.atleast_1d(yw)])
+        if not np.all(np.isfinite(out)):
+            raise r.err(f"coordinates outside the domain of CRS {crs_code}", where, key)
+        return out
+
+    # --- geometry in the work frame ------------------------------------------------------
+    arms_w = [(w, n, work(w, "line", a), rt) for w, n, a, rt in raw_arms]
+    pts_w = [(w, n, work(w, "at", a)[0], lim) for w, n, a, lim in raw_points]
+    allxy = np.concatenate([a for _, _, a, _ in arms_w] +
+                           [p[None, :] for _, _, p, _ in pts_w])
+    size = float(np.ptp(allxy, axis=0).max())
+    tol = max(0.01, 1e-6 * size)
+
+    def show_xy(p):
+        x, y = site.from_work(p[0], p[1])
+        return f"({float(x):.6g}, {float(y):.6g})" if lonlat else \
+            f"({float(x):.2f}, {float(y):.2f})"
+
+    lines = []
+    for where, name, a, _ in arms_w:
+        keep = np.r_[True, np.hypot(*np.diff(a, axis=0).T) > tol]
+        a = a[keep]
+        if len(a) < 2:
+            raise r.err("needs at least two distinct vertices", where, "line")
+        if np.hypot(*(a[0] - a[-1])) <= tol:
+            raise r.err("the line closes on itself (first and last vertex are the "
+                        "same); an arm is an open polyline", where, "line")
+        ls = shapely.LineString(a)
+        if not ls.is_simple:
+            raise r.err("the arm crosses itself", where, "line")
+        lines.append((where, name, a, ls))
+
+    for i in range(len(lines)):
+        for j in range(i + 1, len(lines)):
+            wi, _, ai, li = lines[i]
+            wj, _, aj, lj = lines[j]
+            if li.distance(lj) > tol:
+                continue
+            inter = li.intersection(lj)
+            ends = np.array([ai[0], ai[-1], aj[0], aj[-1]])
+            for geom in shapely.get_parts(inter):
+                if geom.geom_type != "Point":
+                    raise r.err(f"overlaps {wi} along part of its length", wj, "line")
+                p = np.array(geom.coords[0])
+                if np.min(np.hypot(*(ends - p).T)) > tol:
+                    raise r.err(f"crosses {wi} at {show_xy(p)}; arms may touch at an "
+                                "end but not cross", wj, "line")
+
+    lands = []
+    for where, name, a in raw_lands:
+        aw = work(where, "outline", a)
+        keep = np.r_[True, np.hypot(*np.diff(aw, axis=0).T) > tol]
+        aw = aw[keep]
+        if len(aw) > 1 and np.hypot(*(aw[0] - aw[-1])) <= tol:
+            aw = aw[:-1]
+        if len(aw) < 3:
+            raise r.err("needs at least three distinct vertices", where, "outline")
+        poly = shapely.Polygon(aw)
+        if not poly.is_valid:
+            reason = shapely.is_valid_reason(poly)
+            raise r.err(f"the outline is not a valid polygon ({reason}); it must not "
+                        "cross itself", where, "outline")
+        if poly.area <= 0:
+            raise r.err("the outline encloses no area", where, "outline")
+        lands.append(Land(name=name, outline=poly))
+
+    land_all = (shapely.union_all([ld.outline for ld in lands]) if lands
+                else shapely.Polygon())
+    arms = []
+    for k, ((where, name, a, ls), (_, _, _, rooted)) in enumerate(zip(lines, arms_w)):
+        others = [o for m, (_, _, _, o) in enumerate(lines) if m != k]
+        other_geom = shapely.MultiLineString(others) if others else None
+
+        def anchored(p):
+            q = shapely.Point(p)
+            if lands and land_all.distance(q) <= tol:
+                return True
+            return other_geom is not None and other_geom.distance(q) <= tol
+
+        if rooted is None:
+            rs, re = anchored(a[0]), anchored(a[-1])
+        else:
+            rs, re = rooted in ("start", "both"), rooted in ("end", "both")
+        arms.append(Arm(name=name, line=a, rooted_start=bool(rs), rooted_end=bool(re)))
+    layout = Layout(arms=tuple(arms), lands=tuple(lands))
+
+    all_arms = shapely.MultiLineString([ls for _, _, _, ls in lines])
+    points = []
+    for where, name, p, limit in pts_w:
+        q = shapely.Point(p)
+        if lands and land_all.distance(q) <= tol:
+            raise r.err(f"the point {show_xy(p)} is on land", where, "at")
+        if all_arms.distance(q) <= tol:
+            raise r.err(f"the point {show_xy(p)} is on an arm", where, "at")
+        points.append(Point(name=name, at=(float(p[0]), float(p[1])), limit=limit))
+
+    # --- grid ---------------------------------------------------------------------------
+    if raw_bounds is not None:
+        xs, ys = np.meshgrid([raw_bounds[0], raw_bounds[2]], [raw_bounds[1], raw_bounds[3]])
+        cw = work("[grid]", "bounds", np.column_stack([xs.ravel(), ys.ravel()]))
+        bounds = (float(cw[:, 0].min()), float(cw[:, 1].min()),
+                  float(cw[:, 0].max()), float(cw[:, 1].max()))
+    else:
+        xmin, ymin = allxy.min(axis=0)
+        xmax, ymax = allxy.max(axis=0)
+        pad = max(0.2 * max(xmax - xmin, ymax - ymin), 50.0)
+        bounds = (float(xmin - pad), float(ymin - pad), float(xmax + pad),
+                  float(ymax + pad))
+    w, h = bounds[2] - bounds[0], bounds[3] - bounds[1]
+    if spacing is None:
+        from harbor.waves import wavelength
+        lmin = float(np.min(wavelength(np.array([s.period for s in seas]), depth, g)))
+        spacing = max(_nice_floor(lmin / 10.0), _fitting_spacing(w, h))
+    else:
+        if spacing > max(w, h):
+            raise r.err(f"spacing {spacing:g} m is larger than the grid "
+                        f"({w:.0f} m × {h:.0f} m)", "[grid]", "spacing")
+        n = grid_size(bounds, spacing)
+        if n > MAX_GRID_POINTS:
+            fit = _fitting_spacing(w, h)
+            raise r.err(f"spacing {spacing:g} m over {w:.0f} m × {h:.0f} m gives "
+                        f"{n:,} grid points, more than {MAX_GRID_POINTS:,}; a spacing "
+                        f"of {fit:g} m or more would fit (or narrow the bounds)",
+                        "[grid]", "spacing")
+    grid = GridSpec(spacing=float(spacing), bounds=bounds)
+
+    return Scenario(path=str(path) if path else "", title=title, site=site,
+                    layout=layout, seas=tuple(seas), points=tuple(points), grid=grid)
+
+
+def _unique(r: _Reader, items, kind):
+    seen = {}
+    for where, name in items:
+        if name in seen:
+            raise r.err(f"duplicate {kind} name {name!r} (also used by {seen[name]})",
+                        where, "name")
+        seen[name] = where
+
+
+def _read_sea(r: _Reader, t: dict, i: int) -> Sea:
+    where = _label("sea", t, i)
+    r.check_keys(t, "sea", where)
+    name = r.string(t, "name", where)
+    kind = r.string(t, "kind", where, choices=_KINDS)
+    height = r.number(t, "height", where, positive=True)
+    period = r.number(t, "period", where, positive=True)
+    from_deg = r.number(t, "from", where, lo=0.0, hi=360.0)
+    if kind == "regular":
+        for k in ("spreading", "spectrum", "peak_period", "gamma"):
+            if k in t:
+                raise r.err("applies to random seas only (this sea has kind = "
+                            "\"regular\")", where, k)
+        return Sea(name=name, kind=kind, height=height, period=period,
+                   from_deg=from_deg)
+    spreading = r.number(t, "spreading", where, required=False, default=10.0,
+                         positive=True)
+    spectrum = r.string(t, "spectrum", where, required=False,
+                        default="bretschneider-mitsuyasu", choices=_SPECTRA)
+    if spectrum != "jonswap":
+        for k in ("peak_period", "gamma"):
+            if k in t:
+                raise r.err("applies to spectrum = \"jonswap\" only", where, k)
+    peak = r.number(t, "peak_period", where, required=False, positive=True)
+    gamma = r.number(t, "gamma", where, required=False, default=3.3, positive=True)
+    if gamma < 1.0:
+        # gamma < 1 would make the peak lower than the Pierson-Moskowitz shape it
+        # enhances; JONSWAP values are 1 to about 7 (common practice).
+        raise r.err(f"must be at least 1 (JONSWAP peak enhancement), got {gamma:g}",
+                    where, "gamma")
+    return Sea(name=name, kind=kind, height=height, period=period, from_deg=from_deg,
+               spreading=spreading, spectrum=spectrum, peak_period=peak, gamma=gamma)
+
+
+def grid_size(bounds, spacing: float) -> int:
+    """Number of grid points for ``bounds`` (m) at ``spacing`` (m), counted generously
+    (both ends included, a partial step rounded up)."""
+    w, h = bounds[2] - bounds[0], bounds[3] - bounds[1]
+    return (math.ceil(w / spacing) + 1) * (math.ceil(h / spacing) + 1)
+
+
+def _nice_floor(v: float) -> float:
+    e = 10.0 ** math.floor(math.log10(v))
+    for m in (5.0, 2.5, 2.0, 1.0):
+        if m * e <= v:
+            return m * e
+    return e
+
+
+def _fitting_spacing(w: float, h: float) -> float:
+    """The smallest 'round' spacing (2 significant digits) whose grid fits."""
+    s = math.sqrt(w * h / MAX_GRID_POINTS)
+    e = 10.0 ** (math.floor(math.log10(s)) - 1)
+    s = math.ceil(s / e) * e
+    while grid_size((0.0, 0.0, w, h), s) > MAX_GRID_POINTS:
+        s = round(s + e, 12)
+    return s

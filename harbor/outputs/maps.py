@@ -1,0 +1,701 @@
+"""Sheltering maps: a PNG of K' (or wave height) over the real layout.
+
+The map reads a solved result (``harbor.solve``) and the scenario it came from; it never
+recomputes physics. The drawing is split into reusable pieces (:func:`draw_map`,
+:func:`draw_colorbar`, :func:`draw_legend`) so that the PDF sheet
+(:mod:`harbor.outputs.sheet`) shows exactly the same map.
+"""
+
+from __future__ import annotations
+
+import math
+import textwrap
+from pathlib import Path
+
+import matplotlib as mpl
+import numpy as np
+import shapely
+from matplotlib import colors as mcolors
+from matplotlib import patheffects, transforms
+from matplotlib.backends.backend_agg import FigureCanvasAgg
+from matplotlib.figure import Figure
+from matplotlib.lines import Line2D
+from matplotlib.patches import Circle, Patch, PathPatch, Polygon as MplPolygon, Rectangle
+from matplotlib.path import Path as MplPath
+
+from harbor.cautions import CAUTION_SHORT
+from harbor.errors import InputError
+from harbor.outputs._atomic import atomic_path
+
+# Our palette. The fill colour map is matplotlib's "cividis" (perceptually uniform and
+# readable with the common colour-vision deficiencies); everything drawn over it is
+# either very dark with a white halo or white, so it stays visible on both ends.
+CMAP = "cividis"
+LAND_FACE = "#e6dcc3"
+LAND_EDGE = "#8c7e5f"
+ARM_COLOUR = "#161616"
+INK = "#222222"
+MUTED = "#555555"
+OK_COLOUR = "#1b7a3a"
+OVER_COLOUR = "#b3261e"
+A4_LANDSCAPE = (11.69, 8.27)  # inches
+
+_HALO = [patheffects.withStroke(linewidth=3.0, foreground="white")]
+
+
+# --------------------------------------------------------------------------- result reading
+
+def sea_name(result, sea) -> str:
+    """Return the name of sea state ``sea`` in ``result``.
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+        A solved result.
+    sea : str, int or object with ``.name``
+        The sea state's name, its index, or a scenario ``Sea``.
+
+    Returns
+    -------
+    str
+
+    Raises
+    ------
+    harbor.errors.InputError
+        If the result has no such sea state.
+    """
+    names = [str(s) for s in result["sea"].values]
+    if isinstance(sea, (int, np.integer)) and not isinstance(sea, bool):
+        if 0 <= sea < len(names):
+            return names[sea]
+    else:
+        name = str(getattr(sea, "name", sea))
+        if name in names:
+            return name
+    raise InputError(f"no sea state {sea!r} in the result (it has: {', '.join(names) or 'none'})",
+                     key="sea")
+
+
+def sea_info(result, name: str) -> dict:
+    """Collect the per-sea attributes of ``name`` as plain Python values."""
+    r = result.sel(sea=name)
+
+    def get(var, default=float("nan")):
+        if var not in r:
+            return default
+        v = r[var].values
+        return v.item() if hasattr(v, "item") else v
+
+    kind = str(get("sea_kind", "regular"))
+    return {
+        "name": name,
+        "kind": kind,
+        "random": kind == "random",
+        "height": float(get("sea_height")),
+        "period": float(get("sea_period")),
+        "from": float(get("sea_from")),
+        "spreading": float(get("sea_spreading")),
+        "method": str(get("sea_method", result.attrs.get("method", ""))),
+        "wavelength": float(get("sea_wavelength")),
+    }
+
+
+_COMPASS = ["N", "NNE", "NE", "ENE", "E", "ESE", "SE", "SSE",
+            "S", "SSW", "SW", "WSW", "W", "WNW", "NW", "NNW"]
+
+
+def compass(deg: float) -> str:
+    """16-point compass name of a bearing in degrees."""
+    return _COMPASS[int(round((deg % 360.0) / 22.5)) % 16]
+
+
+def height_symbol(random: bool, math: bool = True) -> str:
+    """The wave-height symbol: H (regular) or H1/3 (random)."""
+    if random:
+        return r"$H_{1/3}$" if math else "H1/3"
+    return r"$H$" if math else "H"
+
+
+def sea_label(info: dict, math: bool = True) -> str:
+    """One line describing a sea state, e.g. ``storm SW - random sea, H1/3 2.00 m, ...``."""
+    hs = height_symbol(info["random"], math)
+    ts = (r"$T_{1/3}$" if math else "T1/3") if info["random"] else (r"$T$" if math else "T")
+    kind = "directional random sea" if info["random"] else "regular sea"
+    s = (f"'{info['name']}': {kind}, {hs} = {info['height']:.2f} m, {ts} = {info['period']:.1f} s, "
+         f"from {info['from']:.0f}\u00b0 true ({compass(info['from'])})")
+    if info["random"] and np.isfinite(info["spreading"]):
+        s += (r", $s_{max}$" if math else ", s_max") + f" = {info['spreading']:.0f}"
+    return s
+
+
+def quantity(show: str, random: bool) -> tuple[str, str]:
+    """Return ``(variable, colour-bar label)`` for ``show`` in {"kd", "height"}."""
+    if show == "kd":
+        if random:
+            return "kd", "K' (effective, random sea) [-]"
+        return "kd", "K' diffraction coefficient [-]"
+    if show == "height":
+        if random:
+            return "height", r"significant wave height $H_{1/3}$ [m]"
+        return "height", r"wave height $H$ [m]"
+    raise InputError(f"show must be 'kd' or 'height', not {show!r}", key="show")
+
+
+def crs_label(result) -> str:
+    """A short name of the work CRS for axis labels (``EPSG:32630`` when it has a code)."""
+    crs = str(result.attrs.get("crs", ""))
+    if crs.upper().startswith("EPSG:"):
+        return crs.upper()
+    try:
+        import pyproj
+
+        c = pyproj.CRS.from_user_input(result.attrs.get("crs_wkt") or crs)
+        code = c.to_epsg()
+        if code:
+            return f"EPSG:{code}"
+        if "tmerc" in crs or "Transverse Mercator" in c.to_wkt():
+            return "local transverse Mercator"
+        return c.name
+    except Exception:  # a label must never stop a map
+        return crs[:40] or "site frame"
+
+
+def nice_step(span: float, target: int = 5) -> float:
+    """A round step (1, 2, 2.5 or 5 x 10^n) dividing ``span`` into about ``target`` parts."""
+    raw = span / max(target, 1)
+    if raw <= 0 or not np.isfinite(raw):
+        return 1.0
+    exp = math.floor(math.log10(raw))
+    for m in (1.0, 2.0, 2.5, 5.0, 10.0):
+        if m * 10 ** exp >= raw:
+            return m * 10 ** exp
+    return 10.0 ** (exp + 1)
+
+
+def fill_levels(values: np.ndarray, show: str, sea_height: float):
+    """Filled-contour levels, line levels and whether the top end is open.
+
+    K' uses 0.1 steps from 0 to 1 (K' = 1 is the incident height); values above 1
+    (reflection in front of arms) get 0.25 steps up to the maximum. Heights use a round
+    step.
+    """
+    finite = values[np.isfinite(values)]
+    vmax = float(finite.max()) if finite.size else 1.0
+    if show == "kd":
+        base = np.round(np.arange(0.0, 1.0001, 0.1), 10)
+        top = min(max(1.0, math.ceil(vmax * 4) / 4), 2.0)
+        extra = np.round(np.arange(1.25, top + 1e-9, 0.25), 10)
+        fill = np.concatenate([base, extra])
+        lines = np.round(np.arange(0.1, 1.0001, 0.1), 10)
+        lines = np.concatenate([lines, extra[extra < fill[-1]]])
+        return fill, lines, vmax > fill[-1] + 1e-9
+    hmax = max(vmax, sea_height if np.isfinite(sea_height) else 0.0, 1e-3)
+    step = nice_step(hmax, 10)
+    top = step * math.ceil(hmax / step - 1e-9)
+    fill = np.round(np.arange(0.0, top + step / 2, step), 10)
+    return fill, fill[1:-1] if fill.size > 2 else fill, False
+
+
+# --------------------------------------------------------------------------- layout
+
+def fit_axes_rect(fig, box, xlim, ylim, scale=None):
+    """Place an axes of equal aspect inside ``box`` (inches) and return it.
+
+    Parameters
+    ----------
+    fig : matplotlib.figure.Figure
+    box : (left, bottom, width, height)
+        Available region in inches from the figure's lower-left corner.
+    xlim, ylim : (min, max)
+        Data extent in metres.
+    scale : float, optional
+        If given, print at exactly 1:scale (metres of ground per metre of paper); the
+        axes may then be smaller than ``box``. Otherwise the largest equal-aspect box.
+
+    Returns
+    -------
+    (matplotlib.axes.Axes, float)
+        The axes (top-left aligned in ``box``) and the printed scale denominator.
+    """
+    left, bottom, width, height = box
+    dx, dy = xlim[1] - xlim[0], ylim[1] - ylim[0]
+    if scale is None:
+        s = min(width / dx, height / dy)  # inches per metre
+    else:
+        s = 1.0 / (scale * 39.37007874)
+    w, h = dx * s, dy * s
+    fw, fh = fig.get_size_inches()
+    rect = (left / fw, (bottom + height - h) / fh, w / fw, h / fh)
+    ax = fig.add_axes(rect)
+    ax.set_xlim(*xlim)
+    ax.set_ylim(*ylim)
+    ax.set_aspect("equal", adjustable="box")
+    return ax, 1.0 / (s * 0.0254)
+
+
+def standard_scale(min_denominator: float) -> float:
+    """The smallest scale 1:N with N in the 1-2-2.5-5 x 10^n series and N >= the given
+    value (so the map fits). 1:2500 and 1:25000 are the usual harbour-chart scales besides
+    the ISO 5455 1-2-5 series."""
+    exp = math.floor(math.log10(min_denominator))
+    for m in (1.0, 2.0, 2.5, 5.0, 10.0):
+        n = m * 10 ** exp
+        if n >= min_denominator * (1 - 1e-9):
+            return n
+    return 10.0 ** (exp + 1)
+
+
+# --------------------------------------------------------------------------- drawing
+
+def _polygon_patch(poly, **kw):
+    """A PathPatch for a shapely (Multi)Polygon, holes included."""
+    verts, codes = [], []
+    for part in shapely.get_parts(poly):
+        for ring in [part.exterior, *part.interiors]:
+            xy = np.asarray(ring.coords)
+            if len(xy) < 3:
+                continue
+            verts.append(xy)
+            c = np.full(len(xy), MplPath.LINETO, dtype=np.uint8)
+            c[0] = MplPath.MOVETO
+            c[-1] = MplPath.CLOSEPOLY
+            codes.append(c)
+    if not verts:
+        return None
+    return PathPatch(MplPath(np.concatenate(verts), np.concatenate(codes)), **kw)
+
+
+def _north_arrow(fig, ax, convergence_deg: float, at=(0.935, 0.86)):
+    """Draw a north arrow pointing to TRUE north near the axes' top-right corner.
+
+    True north lies at grid bearing ``-convergence_deg`` (grid bearing = true bearing -
+    convergence), i.e. the arrow is turned counter-clockwise from the page's up
+    direction by the convergence. Drawn in inches so that it stays a clean shape
+    whatever the data extent.
+    """
+    tr = fig.dpi_scale_trans + transforms.ScaledTranslation(at[0], at[1], ax.transAxes)
+    b = math.radians(-convergence_deg)  # grid bearing of true north, clockwise from up
+    u = np.array([math.sin(b), math.cos(b)])  # unit vector towards true north (page)
+    n = np.array([u[1], -u[0]])
+    r = 0.32
+    artists = [Circle((0, 0), r, transform=tr, facecolor="white", edgecolor=MUTED,
+                      linewidth=0.8, alpha=0.92, zorder=20)]
+    tip, tail = 0.25 * u, -0.2 * u
+    left = MplPolygon([tip, tail - 0.085 * n, -0.05 * u], closed=True, transform=tr,
+                      facecolor=INK, edgecolor=INK, linewidth=0.6, zorder=21)
+    right = MplPolygon([tip, tail + 0.085 * n, -0.05 * u], closed=True, transform=tr,
+                       facecolor="white", edgecolor=INK, linewidth=0.6, zorder=21)
+    for a in (*artists, left, right):
+        ax.add_artist(a)
+        a.set_clip_on(False)
+    ax.text(*((r + 0.1) * u), "N", transform=tr, ha="center", va="center",
+            fontsize=11, fontweight="bold", color=INK, zorder=22, clip_on=False)
+    ax.text(0.0, -r - 0.09, "true north" + (f"\nconvergence {convergence_deg:+.2f}\u00b0"
+                                            if abs(convergence_deg) >= 0.005 else ""),
+            transform=tr, ha="center", va="top", fontsize=6.5, color=INK, zorder=22,
+            clip_on=False, bbox=dict(boxstyle="round,pad=0.2", facecolor="white",
+                                     edgecolor="none", alpha=0.85))
+    return artists[0]
+
+
+def _scale_bar(ax):
+    """Draw a two-segment scale bar (round length, metres) at the lower-left corner."""
+    x0, x1 = ax.get_xlim()
+    y0, y1 = ax.get_ylim()
+    w, h = x1 - x0, y1 - y0
+    length = nice_step(w, 5)
+    if length > 0.3 * w:
+        length = nice_step(w, 8)
+    bx, by = x0 + 0.035 * w, y0 + 0.055 * h
+    th = 0.012 * max(w, h)
+    pad = 0.015 * max(w, h)
+    bg = Rectangle((bx - pad, by - 2.4 * th - pad * 0.6), length + 2 * pad + 0.035 * w,
+                   3.6 * th + 1.6 * pad, facecolor="white", edgecolor=MUTED, linewidth=0.6,
+                   alpha=0.92, zorder=18)
+    ax.add_patch(bg)
+    half = length / 2
+    ax.add_patch(Rectangle((bx, by), half, th, facecolor=INK, edgecolor=INK, lw=0.6, zorder=19))
+    ax.add_patch(Rectangle((bx + half, by), half, th, facecolor="white", edgecolor=INK,
+                           lw=0.6, zorder=19))
+
+    def fmt(v):
+        return f"{v:g}"
+
+    for v, lab in ((0, "0"), (half, fmt(half)), (length, fmt(length) + " m")):
+        ax.text(bx + v, by - 0.4 * th, lab, ha="center", va="top", fontsize=7.5, color=INK,
+                zorder=19)
+    return bg
+
+
+def _bleed(field: np.ndarray, cells: int = 2) -> np.ndarray:
+    """Extend valid values into NaN cells by up to ``cells`` cells, for display only.
+
+    The result is NaN on land cells, so filled contours stop up to one cell short of the
+    land outline and leave a blank sliver; land is drawn on top, so spreading the nearest
+    values a cell or two under it closes the sliver without showing anything new on the
+    water. Values in the file exports are never altered.
+    """
+    f = np.array(field, float)
+    for _ in range(cells):
+        nan = np.isnan(f)
+        if not nan.any() or nan.all():
+            break
+        p = np.pad(f, 1, constant_values=np.nan)
+        neigh = np.stack([p[:-2, 1:-1], p[2:, 1:-1], p[1:-1, :-2], p[1:-1, 2:]])
+        cnt = np.sum(~np.isnan(neigh), axis=0)
+        mean = np.nansum(neigh, axis=0) / np.maximum(cnt, 1)
+        f = np.where(nan & (cnt > 0), mean, f)
+    return f
+
+
+def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fontsize=7.5):
+    """Draw the sheltering map of one sea state into ``fig``.
+
+    Parameters
+    ----------
+    fig : matplotlib.figure.Figure
+    box : (left, bottom, width, height)
+        Region for the map axes, inches.
+    result : xarray.Dataset
+        The solved result (see :func:`harbor.solve`).
+    scenario : harbor.study.scenario.Scenario or None
+        Supplies arms, land and point limits; ``None`` draws the field and points only.
+    sea : str, int or Sea
+        Which sea state.
+    show : {"kd", "height"}
+        Colour the map by K' or by wave height.
+    scale : float, optional
+        Print scale denominator (see :func:`fit_axes_rect`).
+    label_fontsize : float
+        Point-label size (pt).
+
+    Returns
+    -------
+    dict
+        ``ax``, ``mappable`` (for the colour bar), ``label`` (colour-bar label),
+        ``scale`` (printed scale denominator), ``info`` (sea attributes), ``levels``,
+        ``extend``, ``obstacles`` (artists labels must avoid).
+    """
+    name = sea_name(result, sea)
+    info = sea_info(result, name)
+    var, cbar_label = quantity(show, info["random"])
+    field = np.asarray(result[var].sel(sea=name).transpose("y", "x").values, float)
+    x = np.asarray(result["x"].values, float)
+    y = np.asarray(result["y"].values, float)
+    xlim, ylim = (x.min(), x.max()), (y.min(), y.max())
+
+    ax, denom = fit_axes_rect(fig, box, xlim, ylim, scale)
+    ax.set_facecolor("#f2f2f2")
+    fill, lines, open_top = fill_levels(field, show, info["height"])
+    field = _bleed(field)
+    cmap = mpl.colormaps[CMAP]
+    extend = "max" if open_top else "neither"
+    norm = mcolors.BoundaryNorm(fill, cmap.N, extend=extend)
+    cf = ax.contourf(x, y, field, levels=fill, cmap=cmap, norm=norm, extend=extend, zorder=1)
+
+    # Isoline colour: white over the dark end of the map, near-black over the light end.
+    def ink_for(level):
+        r, g, b, _ = cmap(norm(level))
+        return "white" if 0.2126 * r + 0.7152 * g + 0.0722 * b < 0.45 else "#111111"
+
+    line_colours = [ink_for(v) for v in lines]
+    cs = ax.contour(x, y, field, levels=lines, colors=line_colours, linewidths=0.7, zorder=2)
+    fmt = (lambda v: f"{v:.1f}" if abs(v * 10 - round(v * 10)) < 1e-6 else f"{v:.2f}") \
+        if show == "kd" else (lambda v: f"{v:g} m")
+    labels = ax.clabel(cs, inline=True, fontsize=7, fmt=fmt, inline_spacing=3)
+    for t in labels:
+        t.set_zorder(3)
+
+    layout = getattr(scenario, "layout", None) if scenario is not None else None
+    handles = []
+    if layout is not None:
+        for land in getattr(layout, "lands", ()):
+            p = _polygon_patch(land.outline, facecolor=LAND_FACE, edgecolor=LAND_EDGE,
+                               linewidth=0.9, zorder=5)
+            if p is not None:
+                ax.add_patch(p)
+        # The field jumps across an arm but is contoured between grid nodes, so a band
+        # one cell wide on each side of the arm shows squeezed isolines that mean
+        # nothing; the white casing of the arm covers that band.
+        pts_per_m = ax.get_position().width * fig.get_size_inches()[0] * 72.0 / (xlim[1] - xlim[0])
+        cell = float(np.nanmax(np.abs(np.diff(x)))) if x.size > 1 else 0.0
+        casing = float(np.clip(2.0 * cell * pts_per_m + 1.0, 5.4, 14.0))
+        for arm in getattr(layout, "arms", ()):
+            xy = np.asarray(arm.line, float)
+            ax.plot(xy[:, 0], xy[:, 1], color=ARM_COLOUR, linewidth=3.2, solid_capstyle="butt",
+                    solid_joinstyle="round", zorder=7,
+                    path_effects=[patheffects.withStroke(linewidth=casing, foreground="white")])
+            for tip, _inward in arm.heads():
+                ax.plot(tip[0], tip[1], marker="o", markersize=7, markerfacecolor=ARM_COLOUR,
+                        markeredgecolor="white", markeredgewidth=1.4, zorder=8)
+        if getattr(layout, "lands", ()):
+            handles.append(Patch(facecolor=LAND_FACE, edgecolor=LAND_EDGE, label="land"))
+        if getattr(layout, "arms", ()):
+            handles.append(Line2D([], [], color=ARM_COLOUR, lw=3.2, label="breakwater arm",
+                                  path_effects=[patheffects.withStroke(linewidth=5.4,
+                                                                       foreground="white")]))
+            handles.append(Line2D([], [], ls="", marker="o", markersize=7,
+                                  markerfacecolor=ARM_COLOUR, markeredgecolor="white",
+                                  markeredgewidth=1.4, label="breakwater head (diffracting)"))
+
+    ax.set_xlim(*xlim)
+    ax.set_ylim(*ylim)
+    ax.set_xlabel(f"Easting [m] ({crs_label(result)})", fontsize=8.5)
+    ax.set_ylabel("Northing [m]", fontsize=8.5)
+    ax.ticklabel_format(useOffset=False, style="plain")
+    ax.tick_params(labelsize=7.5)
+    for lab in ax.get_yticklabels():
+        lab.set_rotation(90)
+        lab.set_va("center")
+
+    obstacles = [_north_arrow(fig, ax, float(result.attrs.get("convergence_deg", 0.0) or 0.0)),
+                 _scale_bar(ax)]
+    point_handles = _draw_points(fig, ax, result, scenario, name, info, obstacles,
+                                 label_fontsize)
+    handles.extend(point_handles)
+    return {"ax": ax, "mappable": cf, "label": cbar_label, "scale": denom, "info": info,
+            "levels": fill, "extend": extend, "handles": handles, "name": name}
+
+
+def point_rows(result, scenario, name):
+    """Per-point values for sea ``name``: list of dicts (name, x, y, kd, height, limit, ok).
+
+    ``limit`` comes from the result (``point_limit``), falling back to the scenario's
+    points; ``ok`` is ``None`` when there is no limit or no height (point on land).
+    """
+    if "point" not in result.dims or result.sizes.get("point", 0) == 0:
+        return []
+    limits_s = {p.name: p.limit for p in getattr(scenario, "points", ())} if scenario else {}
+    r = result.sel(sea=name)
+    rows = []
+    for i, pname in enumerate(result["point"].values):
+        pname = str(pname)
+        lim = float(result["point_limit"].values[i]) if "point_limit" in result else float("nan")
+        if not np.isfinite(lim) and limits_s.get(pname) is not None:
+            lim = float(limits_s[pname])
+        h = float(r["point_height"].values[i]) if "point_height" in r else float("nan")
+        kd = float(r["point_kd"].values[i]) if "point_kd" in r else float("nan")
+        pr = float(r["point_period_ratio"].values[i]) if "point_period_ratio" in r else float("nan")
+        ok = None
+        if np.isfinite(lim) and np.isfinite(h):
+            ok = bool(h <= lim)
+        rows.append({"name": pname, "x": float(result["point_x"].values[i]),
+                     "y": float(result["point_y"].values[i]), "kd": kd, "height": h,
+                     "period_ratio": pr, "limit": lim if np.isfinite(lim) else None, "ok": ok})
+    return rows
+
+
+def _draw_points(fig, ax, result, scenario, name, info, obstacles, fontsize):
+    """Mark each point and place its label where it hides the least."""
+    rows = point_rows(result, scenario, name)
+    if not rows:
+        return []
+    hs = height_symbol(info["random"])
+    markers = []
+    style = {True: dict(marker="o", markerfacecolor=OK_COLOUR),
+             False: dict(marker="X", markerfacecolor=OVER_COLOUR),
+             None: dict(marker="o", markerfacecolor="white")}
+    for row in rows:
+        (m,) = ax.plot(row["x"], row["y"], ls="", markersize=8, markeredgecolor=INK,
+                       markeredgewidth=1.0, zorder=12, clip_on=False, **style[row["ok"]])
+        markers.append(m)
+
+    canvas = fig.canvas if isinstance(fig.canvas, FigureCanvasAgg) else FigureCanvasAgg(fig)
+    renderer = canvas.get_renderer()
+    ax_box = ax.get_window_extent(renderer)
+    placed = [o.get_window_extent(renderer) for o in obstacles]
+    placed += [m.get_window_extent(renderer).expanded(1.1, 1.1) for m in markers]
+    candidates = [(9, 7, "left", "bottom"), (9, -7, "left", "top"), (-9, 7, "right", "bottom"),
+                  (-9, -7, "right", "top"), (0, 11, "center", "bottom"),
+                  (0, -11, "center", "top"), (14, 0, "left", "center"), (-14, 0, "right", "center")]
+    for row in rows:
+        if not np.isfinite(row["height"]):
+            val = "no value (on land or outside the grid)"
+        else:
+            val = f"{hs} = {row['height']:.2f} m"
+            if row["ok"] is True:
+                val += f", limit {row['limit']:.2f} m: ok"
+            elif row["ok"] is False:
+                val += f", limit {row['limit']:.2f} m: OVER"
+        text = f"{row['name']}\n{val}"
+        colour = {True: OK_COLOUR, False: OVER_COLOUR, None: INK}[row["ok"]]
+        best, best_score = None, None
+        for dx, dy, ha, va in candidates:
+            t = ax.annotate(text, (row["x"], row["y"]), xytext=(dx, dy), textcoords="offset points",
+                            ha=ha, va=va, fontsize=fontsize, color=colour, zorder=14,
+                            annotation_clip=False, linespacing=1.15,
+                            bbox=dict(boxstyle="round,pad=0.25", facecolor="white",
+                                      edgecolor=colour, linewidth=0.6, alpha=0.9))
+            # The text extent excludes its rounded box (pad 0.25 em) and a little air.
+            bb = t.get_window_extent(renderer).padded(
+                (0.25 * fontsize + 1.5) * fig.dpi / 72.0)
+            score = sum(_overlap(bb, p) for p in placed)
+            # Leaving the map frame is worse than touching another label.
+            outside = max(0, ax_box.x0 - bb.x0) + max(0, bb.x1 - ax_box.x1) \
+                + max(0, ax_box.y0 - bb.y0) + max(0, bb.y1 - ax_box.y1)
+            score += 4 * outside * bb.height
+            if best_score is None or score < best_score - 1e-9:
+                if best is not None:
+                    best[0].remove()
+                best, best_score = (t, bb), score
+            else:
+                t.remove()
+            if best_score == 0:
+                break
+        placed.append(best[1])
+    handles = []
+    kinds = {r["ok"] for r in rows}
+    if True in kinds:
+        handles.append(Line2D([], [], ls="", markersize=8, markeredgecolor=INK,
+                              label="point: meets its limit", **style[True]))
+    if False in kinds:
+        handles.append(Line2D([], [], ls="", markersize=8, markeredgecolor=INK,
+                              label="point: over its limit", **style[False]))
+    if None in kinds:
+        handles.append(Line2D([], [], ls="", markersize=8, markeredgecolor=INK,
+                              label="point (no limit given)", **style[None]))
+    return handles
+
+
+def _overlap(a, b) -> float:
+    w = min(a.x1, b.x1) - max(a.x0, b.x0)
+    h = min(a.y1, b.y1) - max(a.y0, b.y0)
+    return w * h if w > 0 and h > 0 else 0.0
+
+
+def draw_colorbar(fig, drawn, rect=None, orientation="vertical"):
+    """Add the colour bar of a drawn map; ``rect`` in inches, default: right of the map."""
+    ax = drawn["ax"]
+    fw, fh = fig.get_size_inches()
+    if rect is None:
+        pos = ax.get_position()
+        rect = ((pos.x1 * fw) + 0.18, pos.y0 * fh, 0.16, pos.height * fh)
+    cax = fig.add_axes((rect[0] / fw, rect[1] / fh, rect[2] / fw, rect[3] / fh))
+    levels = drawn["levels"]
+    ticks = levels if len(levels) <= 16 else levels[::2]
+    cb = fig.colorbar(drawn["mappable"], cax=cax, orientation=orientation, ticks=ticks,
+                      spacing="proportional")
+    cb.set_label(drawn["label"], fontsize=8.5)
+    cb.ax.tick_params(labelsize=7.5)
+    return cb
+
+
+def draw_legend(fig, drawn, anchor, fontsize=7.5):
+    """Draw the map key with its upper-left corner at ``anchor`` (inches)."""
+    fw, fh = fig.get_size_inches()
+    if not drawn["handles"]:
+        return None
+    return fig.legend(handles=drawn["handles"], loc="upper left",
+                      bbox_to_anchor=(anchor[0] / fw, anchor[1] / fh), fontsize=fontsize,
+                      frameon=False, title="Key", title_fontsize=fontsize + 0.5,
+                      alignment="left", handlelength=2.2, borderaxespad=0.0)
+
+
+def title_lines(result, scenario, info) -> tuple[str, str, str]:
+    """(title, sea-state line, method line) shared by the map and the sheet."""
+    title = str(result.attrs.get("title") or getattr(scenario, "title", "") or "Harbour layout")
+    method = f"Method: {info['method']}" if info["method"] else ""
+    extra = []
+    if np.isfinite(info["wavelength"]):
+        extra.append(f"L = {info['wavelength']:.1f} m at the {'significant ' if info['random'] else ''}period")
+    depth = result.attrs.get("depth")
+    if depth not in (None, ""):
+        try:
+            extra.append(f"depth {float(depth):g} m")
+        except (TypeError, ValueError):
+            pass
+    if extra:
+        method += ("; " if method else "") + ", ".join(extra)
+    return title, "Sea state " + sea_label(info), method
+
+
+def warning_lines(result) -> list[str]:
+    """The validity warnings of the result as a list of non-empty lines."""
+    return [w.strip() for w in str(result.attrs.get("warnings", "") or "").splitlines()
+            if w.strip()]
+
+
+def new_figure(size=A4_LANDSCAPE) -> Figure:
+    """A pyplot-free figure (Agg canvas) so that maps can be drawn from any thread."""
+    fig = Figure(figsize=size)
+    FigureCanvasAgg(fig)
+    return fig
+
+
+# --------------------------------------------------------------------------- public
+
+def sheltering_map(result, scenario, sea, path, show="kd", dpi=170):
+    """Write a PNG sheltering map of one sea state.
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+        Solved result from :func:`harbor.solve` (variables ``kd``, ``height`` on
+        (sea, y, x) in metres of the work frame; per-sea and per-point variables; attributes
+        ``title``, ``crs``, ``convergence_deg``, ``warnings`` ...).
+    scenario : harbor.study.scenario.Scenario or None
+        The scenario solved (arms, land and point limits are drawn from it).
+    sea : str, int or Sea
+        The sea state to map.
+    path : str or os.PathLike
+        Output PNG file; written atomically.
+    show : {"kd", "height"}
+        Colour by the diffraction coefficient K' = H / H_incident or by the wave height
+        H (regular) / H1/3 (random), m.
+    dpi : int
+        Raster resolution; the figure is A4 landscape (297 x 210 mm).
+
+    Returns
+    -------
+    pathlib.Path
+        The written file.
+
+    Notes
+    -----
+    Nothing is computed here: colours, isolines and point values are read from the
+    result. The north arrow points to true north, at grid bearing -convergence (grid
+    bearing = true bearing - convergence).
+
+    References
+    ----------
+    .. [1] Crameri, F., Shephard, G. E. and Heron, P. J. (2020). The misuse of colour in
+       science communication. Nature Communications 11, 5444 (why a perceptually uniform
+       colour map).
+    .. [2] Nunez, J. R., Anderton, C. R. and Renslow, R. S. (2018). Optimizing colormaps
+       with consideration for color vision deficiency. PLoS ONE 13(7), e0199239
+       (the cividis colour map).
+    """
+    fig = new_figure()
+    fw, fh = fig.get_size_inches()
+    drawn = draw_map(fig, (0.75, 1.2, fw - 0.75 - 3.15, fh - 1.2 - 1.05), result, scenario,
+                     sea, show)
+    draw_colorbar(fig, drawn)
+    pos = drawn["ax"].get_position()
+    legend_x = pos.x1 * fw + 1.15
+    draw_legend(fig, drawn, (legend_x, pos.y1 * fh))
+
+    info = drawn["info"]
+    title, sea_line, method = title_lines(result, scenario, info)
+    fig.text(0.75 / fw, 1 - 0.28 / fh, title, fontsize=14, fontweight="bold", color=INK,
+             va="top")
+    fig.text(0.75 / fw, 1 - 0.58 / fh, sea_line, fontsize=10.5, color=INK, va="top")
+    fig.text(0.75 / fw, 1 - 0.80 / fh, method, fontsize=8.5, color=MUTED, va="top")
+
+    warns = warning_lines(result)
+    foot = []
+    if warns:
+        first = textwrap.shorten(warns[0], 150, placeholder="...")
+        more = f" (+{len(warns) - 1} more)" if len(warns) > 1 else ""
+        foot.append(f"Validity warning: {first}{more}. Full list on the PDF sheet and in the NetCDF file.")
+    foot.append(CAUTION_SHORT)
+    prov = (f"harbor {result.attrs.get('harbor_version', '')}  \u00b7  "
+            f"{str(result.attrs.get('created', ''))[:19].replace('T', ' ')}  \u00b7  "
+            f"scenario: {result.attrs.get('scenario', '') or getattr(scenario, 'path', '') or '(in code)'}")
+    fig.text(0.75 / fw, 0.38 / fh, "\n".join(foot), fontsize=7.5, color=INK, va="bottom",
+             wrap=False)
+    fig.text(0.75 / fw, 0.16 / fh, prov, fontsize=6.5, color=MUTED, va="bottom")
+    fig.add_artist(Line2D([0.75 / fw, 1 - 0.5 / fw], [0.72 / fh, 0.72 / fh], color="#bbbbbb",
+                          lw=0.6))
+    with atomic_path(path) as tmp:
+        fig.savefig(tmp, dpi=dpi, format="png", facecolor="white")
+    return Path(path)

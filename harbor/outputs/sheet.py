@@ -1,0 +1,222 @@
+"""The PDF sheet: the sheltering map at a standard scale with a title block.
+
+One A4-landscape page: the map of :mod:`harbor.outputs.maps` printed at a round scale
+(1:N with N in the 1-2-2.5-5 series), its colour bar and key, the validity warnings, the
+full cautions and a title block whose fields follow ISO 7200 (title, supplementary
+title, document type and status, identification, date of issue, creator, approver,
+responsible department, sheet number), plus the CRS and the scale.
+"""
+
+from __future__ import annotations
+
+import textwrap
+from pathlib import Path
+
+from matplotlib.lines import Line2D
+from matplotlib.patches import Rectangle
+
+from harbor.cautions import CAUTIONS
+from harbor.outputs._atomic import atomic_path, slug
+from harbor.outputs.maps import (INK, MUTED, OVER_COLOUR, crs_label, draw_colorbar, draw_legend,
+                                 draw_map, new_figure, sea_info, sea_label, sea_name,
+                                 standard_scale, title_lines, warning_lines)
+
+MM = 1.0 / 25.4  # inches per millimetre
+DOCUMENT_TYPE = "Preliminary sheltering map"
+DOCUMENT_STATUS = "PRELIMINARY \u2014 not for construction"
+TB_ROWS = (0.50, 0.40, 0.40, 0.42)  # title-block row heights, inches, top to bottom
+TB_WIDTH = 180 * MM  # the ISO 7200 maximum width
+
+
+def _wrap(text: str, width_in: float, fontsize: float) -> list[str]:
+    """Wrap to a width in inches (average glyph of DejaVu Sans about 0.55 em)."""
+    chars = max(20, int(width_in * 72.0 / (fontsize * 0.55)))
+    return textwrap.wrap(text, chars) or [""]
+
+
+def _text_block(fig, x, y_top, width, max_height, heading, items, fontsize=6.8,
+                colour=INK, bullet="\u2013 "):
+    """Write a heading and wrapped bullet items downwards from ``y_top`` (inches).
+
+    Items that do not fit in ``max_height`` are summarised in a last line, so the block
+    never runs into the title block. Returns the height used (inches).
+    """
+    fw, fh = fig.get_size_inches()
+    line_h = fontsize * 1.3 / 72.0
+    fig.text(x / fw, y_top / fh, heading, fontsize=fontsize + 1.2, fontweight="bold",
+             color=colour, va="top")
+    y = y_top - (fontsize + 1.2) * 1.5 / 72.0
+    lines = []
+    for i, item in enumerate(items):
+        wrapped = _wrap(item, width - 0.12, fontsize)
+        block = [bullet + wrapped[0]] + ["   " + w for w in wrapped[1:]]
+        if (len(lines) + len(block) + 1) * line_h > max_height - (y_top - y):
+            lines.append(f"(+{len(items) - i} more: see the NetCDF file's 'warnings' attribute)")
+            break
+        lines.extend(block)
+    if lines:
+        fig.text(x / fw, y / fh, "\n".join(lines), fontsize=fontsize, color=colour, va="top",
+                 linespacing=1.3)
+    return (y_top - y) + len(lines) * line_h
+
+
+def _title_block(fig, x0, y0, result, scenario, info, scale, sheet_number, sheet_count,
+                 name):
+    """Draw the ISO 7200-style title block with its lower-left corner at (x0, y0) inches.
+
+    Width 180 mm (the ISO 7200 maximum) and four rows; empty fields (approval,
+    responsible department) are left for the engineer who signs the sheet.
+    """
+    fw, fh = fig.get_size_inches()
+    width = TB_WIDTH
+    rows = TB_ROWS
+    height = sum(rows)
+
+    def box(x, y, w, h, label, value, size=8.0, bold=False, colour=INK):
+        fig.add_artist(Rectangle((x / fw, y / fh), w / fw, h / fh, fill=False,
+                                 edgecolor=INK, linewidth=0.6))
+        fig.text((x + 0.05) / fw, (y + h - 0.04) / fh, label, fontsize=5.2, color=MUTED,
+                 va="top")
+        lines = _wrap(value, w - 0.1, size)
+        if len(lines) > 2:
+            lines = lines[:2]
+            lines[1] = textwrap.shorten(lines[1] + " \u2026", len(lines[1]), placeholder=" \u2026")
+        fig.text((x + 0.05) / fw, (y + 0.06) / fh, "\n".join(lines), fontsize=size,
+                 color=colour, va="bottom", fontweight="bold" if bold else "normal",
+                 linespacing=1.1)
+
+    title, _, _ = title_lines(result, scenario, info)
+    created = str(result.attrs.get("created", ""))
+    date = created[:10] if len(created) >= 10 else created
+    stem = Path(str(result.attrs.get("scenario", "") or getattr(scenario, "path", "") or "scenario")).stem
+    ident = f"{slug(stem, 'scenario')}/{slug(name)}"
+    right_w = 62 * MM
+    left_w = width - right_w
+    y = y0 + height
+    # Row 1: title | document type
+    y -= rows[0]
+    box(x0, y, left_w, rows[0], "Title", title, size=10, bold=True)
+    box(x0 + left_w, y, right_w, rows[0], "Document type", DOCUMENT_TYPE, size=8.5)
+    # Row 2: supplementary title (sea state) | document status
+    y -= rows[1]
+    box(x0, y, left_w, rows[1], "Supplementary title (sea state)", sea_label(info, math=False),
+        size=7.2)
+    box(x0 + left_w, y, right_w, rows[1], "Document status", DOCUMENT_STATUS, size=8,
+        bold=True, colour=OVER_COLOUR)
+    # Row 3: method | identification number
+    y -= rows[2]
+    box(x0, y, left_w, rows[2], "Method", info["method"] or str(result.attrs.get("method", "")),
+        size=7.2)
+    box(x0 + left_w, y, right_w, rows[2], "Identification number", ident, size=7.2)
+    # Row 4: responsible dept | prepared by | approved by | date | CRS | scale | sheet
+    y -= rows[3]
+    cells = [("Responsible department", "", 30), ("Prepared by",
+              f"harbor {result.attrs.get('harbor_version', '')}", 24),
+             ("Approved by", "", 26), ("Date of issue", date, 22),
+             ("CRS", crs_label(result), 28), ("Scale", f"1:{scale:,.0f}".replace(",", "\u2009")
+                                              + " (A4)", 28),
+             ("Sheet", f"{sheet_number} / {sheet_count}", 22)]
+    x = x0
+    for label, value, w_mm in cells:
+        box(x, y, w_mm * MM, rows[3], label, value, size=7.2)
+        x += w_mm * MM
+    return height
+
+
+def pdf_sheet(result, scenario, sea, path, sheet_number=1, sheet_count=1, show="kd"):
+    """Write a one-page A4-landscape PDF sheet of one sea state.
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+        Solved result from :func:`harbor.solve`.
+    scenario : harbor.study.scenario.Scenario or None
+        The scenario solved (arms, land, points).
+    sea : str, int or Sea
+        The sea state.
+    path : str or os.PathLike
+        Output PDF file; written atomically.
+    sheet_number, sheet_count : int
+        Printed as "n / N" in the title block.
+    show : {"kd", "height"}
+        Colour by K' or by wave height (m).
+
+    Returns
+    -------
+    pathlib.Path
+        The written file.
+
+    Notes
+    -----
+    The map is printed at the largest standard scale 1:N (N = 1, 2, 2.5 or 5 x 10^k)
+    at which the computed area fits the map field, so a ruler on the printed A4 sheet
+    measures ground distances as N x paper distance. Nothing is recomputed: values
+    come from the result.
+
+    References
+    ----------
+    .. [1] ISO 7200:2004. Technical product documentation - Data fields in title blocks
+       and document headers. International Organization for Standardization, Geneva.
+    .. [2] ISO 5455:1979. Technical drawings - Scales. International Organization for
+       Standardization, Geneva.
+    .. [3] ISO 5457:1999. Technical product documentation - Sizes and layout of drawing
+       sheets. International Organization for Standardization, Geneva.
+    """
+    name = sea_name(result, sea)
+    info = sea_info(result, name)
+    fig = new_figure()
+    fw, fh = fig.get_size_inches()
+    # ISO 5457 frame: 20 mm filing margin on the left, 10 mm elsewhere.
+    left, right, bottom, top = 20 * MM, fw - 10 * MM, 10 * MM, fh - 10 * MM
+    fig.add_artist(Rectangle((left / fw, bottom / fh), (right - left) / fw, (top - bottom) / fh,
+                             fill=False, edgecolor=INK, linewidth=1.2))
+
+    tb_height = sum(TB_ROWS)
+    side_w = 2.75
+    map_box = (left + 0.62, bottom + tb_height + 0.55, right - left - 0.62 - side_w - 1.05,
+               top - bottom - tb_height - 0.55 - 0.45)
+    x = result["x"].values
+    y = result["y"].values
+    dx, dy = float(x.max() - x.min()), float(y.max() - y.min())
+    min_n = max(dx / (map_box[2] * 0.0254), dy / (map_box[3] * 0.0254))
+    scale = standard_scale(min_n)
+    drawn = draw_map(fig, map_box, result, scenario, name, show=show, scale=scale,
+                     label_fontsize=6.5)
+    draw_colorbar(fig, drawn)
+    fig.text(map_box[0] / fw, (top - 0.12) / fh, f"{drawn['label'].split(' [')[0]} \u2014 "
+             f"sea state '{name}'", fontsize=10, fontweight="bold", color=INK, va="top")
+
+    side_x = right - side_w - 0.1
+    legend = draw_legend(fig, drawn, (side_x, top - 0.25), fontsize=6.8)
+    # Measure the key so the notes start below it.
+    renderer = fig.canvas.get_renderer()
+    y_notes = top - 0.25
+    if legend is not None:
+        bb = legend.get_window_extent(renderer)
+        y_notes = bb.y0 / fig.dpi - 0.2
+    warns = warning_lines(result)
+    room = y_notes - (bottom + tb_height + 0.15)
+    used = _text_block(fig, side_x, y_notes, side_w, room * 0.62, "Validity warnings",
+                       warns or ["None reported for this result."], colour=INK)
+    _text_block(fig, side_x, y_notes - used - 0.12, side_w, room - used - 0.12,
+                "Cautions", list(CAUTIONS))
+
+    _title_block(fig, right - TB_WIDTH, bottom, result, scenario, info, scale,
+                 sheet_number, sheet_count, name)
+    # Left of the title block: provenance.
+    prov_w = (right - TB_WIDTH) - left - 0.15
+    prov = [f"Scenario file: {result.attrs.get('scenario', '') or getattr(scenario, 'path', '') or '(built in code)'}",
+            f"Created: {result.attrs.get('created', '')}",
+            f"Work CRS: {crs_label(result)}; meridian convergence "
+            f"{float(result.attrs.get('convergence_deg', 0.0) or 0.0):+.3f}\u00b0 "
+            "(north arrow shows true north)",
+            "Values are read from the computed result; distances can be measured at the "
+            "printed scale."]
+    _text_block(fig, left + 0.1, bottom + tb_height - 0.05, prov_w, tb_height - 0.1,
+                "Provenance", prov, fontsize=6.2, colour=MUTED, bullet="")
+    with atomic_path(path) as tmp:
+        fig.savefig(tmp, format="pdf", facecolor="white",
+                    metadata={"Title": f"{info['name']} - {result.attrs.get('title', '')}",
+                              "Author": f"harbor {result.attrs.get('harbor_version', '')}",
+                              "Subject": DOCUMENT_TYPE, "Creator": "harbor"})
+    return Path(path)

@@ -1,0 +1,343 @@
+r"""Wave field behind (and in front of) a gap between two collinear breakwaters.
+
+Local frame: origin at the gap centre, barrier on {y = 0, |x| >= B/2}, waves arrive from
+y < 0 travelling in direction alpha (counter-clockwise from +x, 0 < alpha < pi), time
+factor exp(-i w t), incident phase zero at the origin.
+"""
+
+from __future__ import annotations
+
+from functools import lru_cache
+
+import numpy as np
+from scipy import special
+
+from harbor.solver.kernels.hankel import hankel0
+from harbor.solver.kernels.sommerfeld import check_direction, semi_infinite
+
+__all__ = ["gap", "gap_superposition", "gap_exact", "AUTO_EXACT_BELOW", "aperture_solution",
+           "auto_method"]
+
+#: ``method="auto"`` uses the exact aperture solution when the gap's width projected
+#: across the wave direction, B sin(alpha), is below this many wavelengths, and the
+#: Penney & Price superposition otherwise. Chosen from the comparison of the two
+#: (benchmarks/gap_comparison.py, table in docs/methods.md): one to six wavelengths
+#: behind the gap the largest K' difference is 0.001-0.009 for B sin(alpha) >= 3 L at
+#: 45-90 degrees and reaches 0.03-0.13 for narrow or grazing cases; the projected width
+#: also covers grazing waves (at 15 degrees the difference is still 0.038 at B = 4 L).
+AUTO_EXACT_BELOW = 3.0
+
+_EULER_GAMMA = 0.5772156649015329
+
+
+def _check(wavelength, width):
+    L = float(wavelength)
+    B = float(width)
+    if not np.isfinite(L) or L <= 0:
+        raise ValueError(f"wavelength must be positive and finite, got {wavelength!r}")
+    if not np.isfinite(B) or B <= 0:
+        raise ValueError(f"width must be positive and finite, got {width!r}")
+    return L, B
+
+
+def gap_superposition(x, y, wavelength, direction, width):
+    r"""Gap field by superposing two semi-infinite solutions (Penney & Price 1952).
+
+    Parameters
+    ----------
+    x, y : array_like
+        Coordinates (m), origin at the gap centre, barrier on {y = 0, |x| >= width/2}.
+    wavelength : float
+        Wavelength L (m).
+    direction : float
+        Direction of wave travel (degrees CCW from +x), strictly in (0, 180).
+    width : float
+        Gap width B (m).
+
+    Returns
+    -------
+    numpy.ndarray of complex
+        Surface elevation normalised by the incident amplitude, both sides of the barrier.
+
+    Notes
+    -----
+    :math:`u = u_R + u_L - u_i`, where :math:`u_R` is Sommerfeld's solution for the
+    barrier {x >= B/2} alone, :math:`u_L` for {x <= -B/2} alone (obtained by mirroring
+    x and the direction) and :math:`u_i` the incident wave. Each solution satisfies the
+    no-flux condition on its own barrier only; the error (the diffracted wave of one
+    head scattered by the other barrier) is small when B is a few wavelengths or more.
+
+    References
+    ----------
+    .. [1] Penney, W. G., & Price, A. T. (1952). The diffraction theory of sea waves and
+       the shelter afforded by breakwaters. *Phil. Trans. R. Soc. Lond. A*, 244(882),
+       236-253.
+    .. [2] Johnson, J. W. (1952). Generalized wave diffraction diagrams. *Proc. 2nd
+       Conference on Coastal Engineering*, ASCE, 6-23.
+    """
+    L, B = _check(wavelength, width)
+    alpha = check_direction(direction)
+    k = 2 * np.pi / L
+    b = 0.5 * B
+    x = np.asarray(x, float)
+    y = np.asarray(y, float)
+    ca, sa = np.cos(alpha), np.sin(alpha)
+    right = np.exp(1j * k * b * ca) * semi_infinite(x - b, y, L, np.rad2deg(alpha))
+    left = np.exp(-1j * k * b * ca) * semi_infinite(-x - b, y, L, 180.0 - np.rad2deg(alpha))
+    incident = np.exp(1j * k * (x * ca + y * sa))
+    return right + left - incident
+
+
+def default_nodes(kb: float) -> int:
+    """Number of Chebyshev nodes for the aperture solution at half-width kb (rad).
+
+    Chosen so that doubling it changes K' by less than 1e-5 (tests/test_gap.py).
+    """
+    return int(np.ceil(1.2 * kb)) + 24
+
+
+@lru_cache(maxsize=64)
+def _aperture_cached(kb: float, cos_alpha: float, m: int):
+    j = np.arange(1, m + 1)
+    t = np.cos((2 * j - 1) * np.pi / (2 * m))
+    n = np.arange(1, m)
+    Tn = np.cos(np.outer(n, np.arccos(t)))              # (m-1, m): T_n(t_j)
+    # Product-integration weights of ln|t_i - t'| against 1/sqrt(1-t'^2) (Chebyshev
+    # interpolation of the smooth factor): int ln|t-t'| T_n(t')/sqrt(1-t'^2) dt'
+    # = -pi ln 2 (n = 0), -(pi/n) T_n(t) (n >= 1).
+    W = -(np.pi / m) * (np.log(2.0) + 2.0 * (Tn.T / n) @ Tn)
+    tau = np.abs(t[:, None] - t[None, :])
+    z = kb * tau
+    J0 = special.j0(z)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        smooth = special.hankel1(0, z) - (2j / np.pi) * J0 * np.log(tau)
+    diag = 1.0 + (2j / np.pi) * (np.log(kb / 2.0) + _EULER_GAMMA)
+    smooth[np.arange(m), np.arange(m)] = diag
+    A = (2j / np.pi) * W * J0 + (np.pi / m) * smooth
+    rhs = 2j * np.exp(1j * kb * t * cos_alpha)
+    w = np.linalg.solve(A, rhs)          # v(b t) * b * sqrt(1 - t^2), see aperture_solution
+    return t, w
+
+
+def aperture_solution(kb, alpha, m=None):
+    r"""Solve the aperture integral equation of a gap in a rigid thin wall.
+
+    Parameters
+    ----------
+    kb : float
+        Wavenumber times the half-width of the gap, k B / 2 (rad).
+    alpha : float
+        Direction of wave travel (rad), 0 < alpha < pi.
+    m : int, optional
+        Number of Chebyshev nodes (default :func:`default_nodes`).
+
+    Returns
+    -------
+    t : numpy.ndarray
+        Chebyshev nodes on (-1, 1) (aperture coordinate x / b).
+    w : numpy.ndarray of complex
+        :math:`w(t_j) = b\,v(b t_j)\sqrt{1 - t_j^2}`, v the normal derivative of the field
+        (1/m) across the aperture, normalised by the incident amplitude.
+
+    Notes
+    -----
+    The normal derivative v on the opening :math:`|x| < b` satisfies
+
+    .. math:: \int_{-b}^{b} H_0^{(1)}(k|x-x'|)\, v(x')\, dx' = 2i\, e^{ikx\cos\alpha}.
+
+    With :math:`x = bt`, :math:`v = w/(b\sqrt{1-t^2})` (inverse-square-root edge
+    singularity) and :math:`H_0^{(1)}(kb|\tau|) = \tfrac{2i}{\pi} J_0(kb\tau)\ln|\tau|
+    + S(\tau)`, S analytic, the logarithmic part is integrated exactly against the
+    Chebyshev interpolant of :math:`J_0 w` and the smooth part by Gauss-Chebyshev
+    quadrature (Nystrom collocation at the same nodes); the error decreases spectrally.
+
+    References
+    ----------
+    .. [1] Morse, P. M., & Rubenstein, P. J. (1938). The diffraction of waves by ribbons
+       and by slits. *Physical Review*, 54(11), 895-898.
+    .. [2] Atkinson, K. E. (1997). *The Numerical Solution of Integral Equations of the
+       Second Kind*. Cambridge University Press (product integration, sect. 4.2).
+    .. [3] Mason, J. C., & Handscomb, D. C. (2003). *Chebyshev Polynomials*. Chapman &
+       Hall/CRC, sect. 9.5 (the logarithmic-kernel integrals).
+    """
+    if m is None:
+        m = default_nodes(kb)
+    t, w = _aperture_cached(float(kb), float(np.cos(alpha)), int(m))
+    return t.copy(), w.copy()
+
+
+def _chebyshev_resample(t, w, m_out):
+    """Interpolate w (values at Gauss-Chebyshev nodes t) onto m_out such nodes."""
+    m = t.size
+    theta = np.arccos(t)
+    n = np.arange(m)
+    c = (2.0 / m) * (np.cos(np.outer(n, theta)) @ w)
+    c[0] *= 0.5
+    j = np.arange(1, m_out + 1)
+    t_out = np.cos((2 * j - 1) * np.pi / (2 * m_out))
+    return t_out, np.cos(np.outer(np.arccos(t_out), n)) @ c
+
+
+def _radiated(x, y, k, b, t, w, chunk=65536):
+    r"""-(i/2) \int H0(k rho) v dx' at (x, y), y may be of either sign (mirror symmetric)."""
+    m = t.size
+    out = np.empty(x.shape, complex)
+    xf = x.ravel()
+    yf = np.abs(y.ravel())
+    of = out.ravel()
+    xs = b * t
+    # Near the opening the quadrature of the nearly singular kernel is not enough: there
+    # the log part is integrated exactly (product integration with complex z).
+    theta = np.arccos(t)
+    nn = np.arange(m)
+    cheb = (2.0 / m) * np.cos(np.outer(nn, theta))    # maps samples -> Chebyshev coeffs
+    cheb[0] *= 0.5
+    gap_to_aperture = np.hypot(np.maximum(np.abs(xf) - b, 0.0), yf)
+    near = gap_to_aperture < 8.0 * b / m
+    far_idx = np.nonzero(~near)[0]
+    for s in range(0, far_idx.size, chunk):
+        idx = far_idx[s:s + chunk]
+        rho = np.hypot(xf[idx, None] - xs[None, :], yf[idx, None])
+        of[idx] = (-0.5j * np.pi / m) * (hankel0(k * rho) @ w)
+    near_idx = np.nonzero(near)[0]
+    for s in range(0, near_idx.size, chunk // 8 or 1):
+        idx = near_idx[s:s + chunk // 8]
+        z = (xf[idx] + 1j * yf[idx]) / b
+        zeta = z - np.sqrt(z - 1) * np.sqrt(z + 1)          # |zeta| <= 1 branch
+        flip = np.abs(zeta) > 1
+        zeta[flip] = 1.0 / zeta[flip]
+        n = np.arange(1, m)
+        Ln = np.empty((idx.size, m))
+        Ln[:, 0] = -np.pi * (np.log(2.0) + np.log(np.abs(zeta)))
+        Ln[:, 1:] = -(np.pi / n) * np.real(zeta[:, None] ** n[None, :])
+        rho = np.hypot(xf[idx, None] - xs[None, :], yf[idx, None])
+        J0 = special.j0(k * rho)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            smooth = special.hankel1(0, k * rho) - (2j / np.pi) * J0 * np.log(rho / b)
+        zero = rho == 0
+        if np.any(zero):
+            smooth[zero] = 1.0 + (2j / np.pi) * (np.log(k * b / 2.0) + _EULER_GAMMA)
+        logpart = np.einsum("pn,pn->p", (J0 * w[None, :]) @ cheb.T, Ln)
+        integral = (2j / np.pi) * logpart + (np.pi / m) * (smooth @ w)
+        of[idx] = -0.5j * integral
+    return out
+
+
+def gap_exact(x, y, wavelength, direction, width, nodes=None):
+    r"""Gap field from the exact aperture solution (both sides of the barrier).
+
+    Parameters
+    ----------
+    x, y : array_like
+        Coordinates (m), origin at the gap centre, barrier on {y = 0, |x| >= width/2}.
+    wavelength : float
+        Wavelength L (m).
+    direction : float
+        Direction of wave travel (degrees CCW from +x), strictly in (0, 180).
+    width : float
+        Gap width B (m).
+    nodes : int, optional
+        Chebyshev nodes of the aperture solution (default from :func:`default_nodes`).
+
+    Returns
+    -------
+    numpy.ndarray of complex
+        Surface elevation normalised by the incident amplitude.
+
+    Notes
+    -----
+    Lee side (y > 0): :math:`u = -\tfrac{i}{2}\int_{-b}^{b} H_0^{(1)}(k\rho)\,v(x')\,dx'`;
+    seaward side (y < 0): :math:`u = u_i + u_r + \tfrac{i}{2}\int H_0^{(1)}(k\rho)\,v\,dx'`
+    with :math:`u_i + u_r = e^{ikx\cos\alpha}\,2\cos(ky\sin\alpha)` the field of the closed
+    wall; v from :func:`aperture_solution`. The field integral uses the solution's own
+    Gauss-Chebyshev nodes (increasing them changes K' by less than 1e-10) and, within
+    8b/m of the opening, where that quadrature would lose accuracy on the nearly singular
+    kernel, the logarithmic part is integrated exactly against the Chebyshev interpolant.
+
+    References
+    ----------
+    .. [1] Morse, P. M., & Rubenstein, P. J. (1938). The diffraction of waves by ribbons
+       and by slits. *Physical Review*, 54(11), 895-898.
+    .. [2] Stamnes, J. J. (1986). *Waves in Focal Regions*. Adam Hilger, ch. 17
+       (slit diffraction, the integral equation of the aperture field).
+    """
+    L, B = _check(wavelength, width)
+    alpha = check_direction(direction)
+    k = 2 * np.pi / L
+    b = 0.5 * B
+    x = np.asarray(x, float)
+    y = np.asarray(y, float)
+    x, y = np.broadcast_arrays(x, y)
+    t, w = aperture_solution(k * b, alpha, nodes)
+    rad = _radiated(x, y, k, b, t, w)
+    ca, sa = np.cos(alpha), np.sin(alpha)
+    seaward = y < 0
+    closed_wall = np.exp(1j * k * x * ca) * 2.0 * np.cos(k * y * sa)
+    return np.where(seaward, closed_wall - rad, rad)
+
+
+def auto_method(wavelength, direction, width) -> str:
+    """The method ``gap(method="auto")`` chooses: ``"exact"`` or ``"superposition"``.
+
+    Parameters
+    ----------
+    wavelength : float
+        L (m).
+    direction : float
+        Direction of travel (degrees, 0-180 exclusive).
+    width : float
+        Gap width B (m).
+    """
+    alpha = check_direction(direction)
+    projected = float(width) * np.sin(alpha) / float(wavelength)
+    return "exact" if projected < AUTO_EXACT_BELOW else "superposition"
+
+
+def gap(x, y, wavelength, direction, width, method="auto"):
+    r"""Wave field at a gap between two collinear breakwaters.
+
+    Parameters
+    ----------
+    x, y : array_like
+        Coordinates (m): origin at the gap centre, breakwaters on {y = 0, |x| >= width/2}.
+    wavelength : float
+        Wavelength L (m).
+    direction : float
+        Direction of wave travel (degrees CCW from +x), strictly in (0, 180): the waves
+        arrive from y < 0.
+    width : float
+        Gap width B (m).
+    method : {"auto", "superposition", "exact"}
+        ``"superposition"``: Penney & Price (1952), two semi-infinite solutions minus the
+        incident wave. ``"exact"``: the aperture integral equation
+        (:func:`gap_exact`). ``"auto"``: exact when B sin(alpha) / L <
+        :data:`AUTO_EXACT_BELOW` (= 3), superposition otherwise.
+
+    Returns
+    -------
+    numpy.ndarray of complex
+        Surface elevation normalised by the incident amplitude, time factor exp(-i w t),
+        incident phase zero at the gap centre; K' is the modulus.
+
+    Notes
+    -----
+    Both methods solve :math:`\nabla^2 u + k^2 u = 0` with no flux through the barrier.
+    The superposition neglects the interaction of the two heads; the aperture solution
+    is exact for any width (up to the discretisation, converged to 1e-5 in K').
+
+    References
+    ----------
+    .. [1] Penney, W. G., & Price, A. T. (1952). The diffraction theory of sea waves and
+       the shelter afforded by breakwaters. *Phil. Trans. R. Soc. Lond. A*, 244(882),
+       236-253.
+    .. [2] Morse, P. M., & Rubenstein, P. J. (1938). The diffraction of waves by ribbons
+       and by slits. *Physical Review*, 54(11), 895-898.
+    """
+    L, B = _check(wavelength, width)
+    if method == "auto":
+        method = auto_method(L, direction, B)
+    if method == "superposition":
+        return gap_superposition(x, y, L, direction, B)
+    if method == "exact":
+        return gap_exact(x, y, L, direction, B)
+    raise ValueError(f"method must be 'auto', 'superposition' or 'exact', got {method!r}")

@@ -1,0 +1,605 @@
+"""Frequency spectra, directional spreading and their discretisation into components.
+
+Pure array functions (numpy/scipy only), SI units inside: frequency in Hz, period in s,
+height in m, spectral density in m^2/Hz, angles in rad. The spectra are the forms Goda
+recommends for design in terms of the significant wave height H1/3; the spreading is
+Mitsuyasu's cos^2s form with Goda's rule for s(f).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import special
+
+from harbor.errors import InputError
+
+__all__ = [
+    "BM_PEAK_RATIO",
+    "DEFAULT_N_DIR",
+    "DEFAULT_N_FREQ",
+    "Components",
+    "bretschneider_mitsuyasu",
+    "jonswap",
+    "jonswap_peak_period",
+    "mitsuyasu_s",
+    "mitsuyasu_spreading",
+    "random_components",
+    "spreading_cdf",
+]
+
+#: Peak period over significant period of the Bretschneider-Mitsuyasu spectrum, Tp/T1/3
+#: (Goda 1988), so that fp = 1 / (1.05 T1/3).
+BM_PEAK_RATIO = 1.05
+
+#: Default number of equal-energy frequency bands of :func:`random_components`.
+DEFAULT_N_FREQ = 12
+#: Default number of equal-energy direction bands (per frequency band).
+DEFAULT_N_DIR = 36
+
+_BM_A = 0.257  # Goda's coefficient of H1/3^2 T1/3^-4 f^-5
+_BM_B = 1.03  # Goda's coefficient of (T1/3 f)^-4
+_JS_B = 1.25  # (5/4) (Tp f)^-4: the Pierson-Moskowitz shape in terms of the peak period
+_SPECTRA = ("bretschneider-mitsuyasu", "jonswap")
+
+
+def _frequency(f) -> np.ndarray:
+    f = np.asarray(f, dtype=float)
+    if np.any(~np.isfinite(f)) or np.any(f < 0):
+        raise ValueError(f"frequency must be finite and >= 0 Hz, got {f!r}")
+    return f
+
+
+def _positive(name, value) -> np.ndarray:
+    v = np.asarray(value, dtype=float)
+    if np.any(~np.isfinite(v)) or np.any(v <= 0):
+        raise ValueError(f"{name} must be finite and positive, got {value!r}")
+    return v
+
+
+def _power_law_shape(f, a, b):
+    """a f^-5 exp(-b f^-4), exactly 0 at f = 0 (where the exponential wins)."""
+    out = np.zeros(np.broadcast(f, a, b).shape)
+    f, a, b = np.broadcast_arrays(f, a, b)
+    pos = f > 0
+    fp = f[pos]
+    # exp(-b/f^4) underflows to 0 long before f^-5 overflows; evaluating in logs keeps
+    # tiny frequencies from producing inf * 0.
+    with np.errstate(over="ignore", divide="ignore"):
+        out[pos] = a[pos] * np.exp(-5.0 * np.log(fp) - b[pos] / fp**4)
+    return out
+
+
+def _scalar_or_array(x):
+    return float(x) if np.ndim(x) == 0 else x
+
+
+def bretschneider_mitsuyasu(f, h13, t13):
+    r"""Bretschneider-Mitsuyasu frequency spectrum in Goda's form.
+
+    Parameters
+    ----------
+    f : float or array_like
+        Frequency (Hz), >= 0.
+    h13 : float or array_like
+        Significant wave height H1/3 (m), > 0.
+    t13 : float or array_like
+        Significant wave period T1/3 (s), > 0.
+
+    Returns
+    -------
+    S : float or numpy.ndarray
+        Spectral density (m^2/Hz); 0 at f = 0.
+
+    Notes
+    -----
+    .. math::
+
+        S(f) = 0.257\, H_{1/3}^2\, T_{1/3}^{-4}\, f^{-5}
+               \exp\left[-1.03\, (T_{1/3} f)^{-4}\right]
+
+    The peak lies at :math:`f_p = (4 \cdot 1.03 / 5)^{1/4} / T_{1/3} \approx
+    1 / (1.05\, T_{1/3})`. The zeroth moment is exactly
+    :math:`m_0 = 0.257 / (4 \cdot 1.03)\, H_{1/3}^2 = 0.0624\, H_{1/3}^2`, i.e.
+    :math:`H_{1/3} \approx 4.004 \sqrt{m_0}` (1/16 = 0.0625 would be exact).
+
+    References
+    ----------
+    .. [1] Goda, Y. (1988). Statistical variability of sea state parameters as a function
+       of wave spectrum. *Coastal Engineering in Japan*, 31(1), 39-52.
+    .. [2] Goda, Y. (2010). *Random Seas and Design of Maritime Structures* (3rd ed.).
+       World Scientific, Advanced Series on Ocean Engineering 33, section 2.3.
+    .. [3] Mitsuyasu, H. (1970). On the growth of spectrum of wind-generated waves (2):
+       spectral shape of wind waves at finite fetch. *Proc. 17th Japanese Conference on
+       Coastal Engineering*, 1-7 (in Japanese).
+    """
+    f = _frequency(f)
+    h = _positive("h13", h13)
+    t = _positive("t13", t13)
+    return _scalar_or_array(_power_law_shape(f, _BM_A * h**2 / t**4, _BM_B / t**4))
+
+
+def _jonswap_beta(gamma):
+    g = np.asarray(gamma, dtype=float)
+    return (0.0624 / (0.230 + 0.0336 * g - 0.185 / (1.9 + g))
+            * (1.094 - 0.01915 * np.log(g)))
+
+
+def _jonswap_gamma_factor(x, gamma):
+    """gamma^r with r = exp(-(x - 1)^2 / (2 sigma^2)), x = Tp f."""
+    sigma = np.where(x <= 1.0, 0.07, 0.09)
+    return np.exp(np.log(gamma) * np.exp(-((x - 1.0) ** 2) / (2.0 * sigma**2)))
+
+
+def jonswap(f, h13, tp, gamma=3.3):
+    r"""JONSWAP frequency spectrum in Goda's approximation (H1/3, Tp, gamma).
+
+    Parameters
+    ----------
+    f : float or array_like
+        Frequency (Hz), >= 0.
+    h13 : float or array_like
+        Significant wave height H1/3 (m), > 0.
+    tp : float or array_like
+        Spectral peak period Tp (s), > 0.
+    gamma : float, optional
+        Peak enhancement factor (-), > 0; default 3.3 (mean JONSWAP value). The fit of
+        beta_J is stated for 1 <= gamma <= 7.
+
+    Returns
+    -------
+    S : float or numpy.ndarray
+        Spectral density (m^2/Hz); 0 at f = 0.
+
+    Notes
+    -----
+    .. math::
+
+        S(f) = \beta_J H_{1/3}^2 T_p^{-4} f^{-5} \exp\left[-1.25 (T_p f)^{-4}\right]
+               \gamma^{\exp\left[-(T_p f - 1)^2 / (2\sigma^2)\right]},
+
+    with :math:`\sigma = 0.07` for :math:`f \le f_p`, 0.09 above, and
+
+    .. math::
+
+        \beta_J = \frac{0.0624}{0.230 + 0.0336\gamma - 0.185 (1.9 + \gamma)^{-1}}
+                  (1.094 - 0.01915 \ln\gamma).
+
+    The first factor of :math:`\beta_J` alone makes :math:`m_0 = H_{1/3}^2/16` (within
+    0.3 % for :math:`1 \le \gamma \le 7`); the second raises :math:`m_0` by 6-9 %, which
+    reflects Goda's observation that the significant height of a wave record is somewhat
+    less than :math:`4\sqrt{m_0}` (about :math:`3.8\sqrt{m_0}`). With :math:`\gamma = 1`
+    the shape is that of the Bretschneider-Mitsuyasu (Pierson-Moskowitz) spectrum
+    written with the peak period.
+
+    References
+    ----------
+    .. [1] Goda, Y. (1988). Statistical variability of sea state parameters as a function
+       of wave spectrum. *Coastal Engineering in Japan*, 31(1), 39-52.
+    .. [2] Hasselmann, K., Barnett, T. P., Bouws, E., Carlson, H., Cartwright, D. E.,
+       Enke, K., Ewing, J. A., Gienapp, H., Hasselmann, D. E., Kruseman, P., Meerburg,
+       A., Müller, P., Olbers, D. J., Richter, K., Sell, W., & Walden, H. (1973).
+       Measurements of wind-wave growth and swell decay during the Joint North Sea Wave
+       Project (JONSWAP). *Ergänzungsheft zur Deutschen Hydrographischen Zeitschrift*,
+       Reihe A (8), Nr. 12.
+    .. [3] Goda, Y. (2010). *Random Seas and Design of Maritime Structures* (3rd ed.).
+       World Scientific, section 2.3.
+    """
+    f = _frequency(f)
+    h = _positive("h13", h13)
+    tp = _positive("tp", tp)
+    gamma = _positive("gamma", gamma)
+    base = _power_law_shape(f, _jonswap_beta(gamma) * h**2 / tp**4, _JS_B / tp**4)
+    return _scalar_or_array(base * _jonswap_gamma_factor(f * tp, gamma))
+
+
+def jonswap_peak_period(t13, gamma=3.3):
+    r"""Peak period of a JONSWAP spectrum from the significant period (Goda 1988).
+
+    Parameters
+    ----------
+    t13 : float or array_like
+        Significant wave period T1/3 (s), > 0.
+    gamma : float or array_like, optional
+        Peak enhancement factor (-), default 3.3.
+
+    Returns
+    -------
+    tp : float or numpy.ndarray
+        Peak period Tp (s).
+
+    Notes
+    -----
+    .. math:: T_p \approx T_{1/3} / \left[1 - 0.132 (\gamma + 0.2)^{-0.559}\right]
+
+    an empirical fit to numerical simulations of wave records, for
+    :math:`1 \le \gamma \le 7`.
+
+    References
+    ----------
+    .. [1] Goda, Y. (1988). Statistical variability of sea state parameters as a function
+       of wave spectrum. *Coastal Engineering in Japan*, 31(1), 39-52.
+    .. [2] Goda, Y. (2010). *Random Seas and Design of Maritime Structures* (3rd ed.).
+       World Scientific, section 2.3.
+    """
+    t = _positive("t13", t13)
+    g = _positive("gamma", gamma)
+    return _scalar_or_array(t / (1.0 - 0.132 * (g + 0.2) ** -0.559))
+
+
+def mitsuyasu_s(f, fp, s_max):
+    r"""Spreading parameter s(f) of the Mitsuyasu function, by Goda's rule.
+
+    Parameters
+    ----------
+    f : float or array_like
+        Frequency (Hz), > 0.
+    fp : float or array_like
+        Peak frequency (Hz), > 0; :math:`1/(1.05\,T_{1/3})` for the
+        Bretschneider-Mitsuyasu spectrum.
+    s_max : float or array_like
+        Spreading parameter at the peak (-), > 0: 10 wind waves, 25 swell with short
+        decay distance, 75 swell with long decay distance (Goda & Suzuki 1975).
+
+    Returns
+    -------
+    s : float or numpy.ndarray
+        Spreading parameter (-).
+
+    Notes
+    -----
+    .. math::
+
+        s = s_{max} (f/f_p)^{5} \quad (f \le f_p), \qquad
+        s = s_{max} (f/f_p)^{-2.5} \quad (f > f_p)
+
+    References
+    ----------
+    .. [1] Mitsuyasu, H., Tasai, F., Suhara, T., Mizuno, S., Ohkusu, M., Honda, T., &
+       Rikiishi, K. (1975). Observations of the directional spectrum of ocean waves using
+       a cloverleaf buoy. *Journal of Physical Oceanography*, 5(4), 750-760.
+    .. [2] Goda, Y., & Suzuki, Y. (1975). Computation of refraction and diffraction of
+       sea waves with Mitsuyasu's directional spectrum. *Technical Note of the Port and
+       Harbour Research Institute*, No. 230 (in Japanese).
+    .. [3] Goda, Y. (2010). *Random Seas and Design of Maritime Structures* (3rd ed.).
+       World Scientific, section 2.3.
+    """
+    f = _positive("f", f)
+    fp = _positive("fp", fp)
+    s_max = _positive("s_max", s_max)
+    ratio = f / fp
+    return _scalar_or_array(s_max * np.where(ratio <= 1.0, ratio**5, ratio**-2.5))
+
+
+def _wrap(theta):
+    """Angle(s) wrapped into (-pi, pi]."""
+    t = np.asarray(theta, dtype=float)
+    w = np.mod(t + np.pi, 2.0 * np.pi) - np.pi
+    return np.where(w == -np.pi, np.pi, w)
+
+
+def _log_g0(s):
+    return ((2.0 * s - 1.0) * np.log(2.0) + 2.0 * special.gammaln(s + 1.0)
+            - np.log(np.pi) - special.gammaln(2.0 * s + 1.0))
+
+
+def mitsuyasu_spreading(theta, s):
+    r"""Mitsuyasu directional spreading function, normalised over the full circle.
+
+    Parameters
+    ----------
+    theta : float or array_like
+        Direction relative to the principal direction (rad); wrapped into (-pi, pi].
+    s : float or array_like
+        Spreading parameter (-), > 0 (see :func:`mitsuyasu_s`). Broadcast against
+        ``theta``.
+
+    Returns
+    -------
+    G : float or numpy.ndarray
+        Directional spreading density (1/rad), with
+        :math:`\int_{-\pi}^{\pi} G\, d\theta = 1`.
+
+    Notes
+    -----
+    .. math::
+
+        G(\theta) = G_0 \cos^{2s}(\theta/2), \qquad
+        G_0 = \frac{2^{2s-1}\, \Gamma(s+1)^2}{\pi\, \Gamma(2s+1)}
+
+    evaluated as :math:`\exp[\ln G_0 + 2s \ln\cos(\theta/2)]` with log-gamma functions,
+    so that s up to 1e4 and beyond (long-crested seas) neither overflows nor loses
+    precision. For large s, :math:`G_0 \approx \sqrt{s/(4\pi)}`.
+
+    References
+    ----------
+    .. [1] Mitsuyasu, H., Tasai, F., Suhara, T., Mizuno, S., Ohkusu, M., Honda, T., &
+       Rikiishi, K. (1975). Observations of the directional spectrum of ocean waves using
+       a cloverleaf buoy. *Journal of Physical Oceanography*, 5(4), 750-760.
+    .. [2] Goda, Y. (2010). *Random Seas and Design of Maritime Structures* (3rd ed.).
+       World Scientific, section 2.3.
+    """
+    th = _wrap(theta)
+    s = _positive("s", s)
+    with np.errstate(divide="ignore"):
+        log_cos = np.log(np.cos(th / 2.0))
+    # s * log(0) at theta = pi would give -inf (fine) but 0 * -inf must not appear.
+    log_g = _log_g0(s) + 2.0 * s * np.where(np.isfinite(log_cos), log_cos, -np.inf)
+    return _scalar_or_array(np.exp(log_g))
+
+
+def spreading_cdf(theta, s):
+    r"""Fraction of the Mitsuyasu spreading energy between -pi and ``theta``.
+
+    Parameters
+    ----------
+    theta : float or array_like
+        Direction relative to the principal direction (rad), in [-pi, pi].
+    s : float or array_like
+        Spreading parameter (-), > 0. Broadcast against ``theta``.
+
+    Returns
+    -------
+    C : float or numpy.ndarray
+        :math:`\int_{-\pi}^{\theta} G\, d\theta'` (-), from 0 at -pi to 1 at pi.
+
+    Notes
+    -----
+    With :math:`t = \sin^2(\theta/2)` the integral of :math:`\cos^{2s}(\theta/2)` from 0
+    to :math:`\theta` becomes a Beta integral, so that
+
+    .. math::
+
+        C(\theta) = \tfrac12 + \tfrac12\, \mathrm{sign}(\theta)\,
+                    I_{\sin^2(\theta/2)}\left(\tfrac12, s + \tfrac12\right)
+
+    with :math:`I_x(a, b)` the regularised incomplete Beta function; exact, and its
+    inverse (:func:`scipy.special.betaincinv`) gives equal-energy direction bands.
+
+    References
+    ----------
+    .. [1] Abramowitz, M., & Stegun, I. A. (1964). *Handbook of Mathematical Functions*.
+       National Bureau of Standards, eq. 6.2.1 and 26.5.1.
+    .. [2] Goda, Y. (2010). *Random Seas and Design of Maritime Structures* (3rd ed.).
+       World Scientific, section 2.3.
+    """
+    th = np.asarray(theta, dtype=float)
+    if np.any(~np.isfinite(th)) or np.any(np.abs(th) > np.pi):
+        raise ValueError(f"theta must lie in [-pi, pi], got {theta!r}")
+    s = _positive("s", s)
+    half = 0.5 * special.betainc(0.5, s + 0.5, np.sin(th / 2.0) ** 2)
+    return _scalar_or_array(0.5 + np.sign(th) * half)
+
+
+def _spreading_quantile(q, s):
+    """Inverse of :func:`spreading_cdf`: the angle below which a fraction q lies."""
+    q = np.asarray(q, dtype=float)
+    x = special.betaincinv(0.5, s + 0.5, np.abs(2.0 * q - 1.0))
+    return np.sign(q - 0.5) * 2.0 * np.arcsin(np.sqrt(np.clip(x, 0.0, 1.0)))
+
+
+@dataclass(frozen=True)
+class Components:
+    """A directional random sea discretised into regular components.
+
+    All arrays are 1-D and of equal length (one entry per component).
+
+    Attributes
+    ----------
+    frequency : numpy.ndarray
+        Representative frequency of each component (Hz).
+    period : numpy.ndarray
+        ``1 / frequency`` (s).
+    angle : numpy.ndarray
+        Offset of the component's direction of travel from the principal direction of
+        travel (rad), counter-clockwise positive, in (-pi, pi].
+    weight : numpy.ndarray
+        Fraction of m0 carried by the component (-); the weights sum to 1.
+    m0 : float
+        Zeroth moment of the model spectrum as integrated (m^2).
+    m0_target : float
+        H1/3^2 / 16 (m^2), the zeroth moment implied by H1/3 = 4 sqrt(m0).
+    tm02 : float
+        Mean period sqrt(m0/m2) of the continuous spectrum (s).
+    """
+
+    frequency: np.ndarray
+    period: np.ndarray
+    angle: np.ndarray
+    weight: np.ndarray
+    m0: float
+    m0_target: float
+    tm02: float
+
+    def __len__(self) -> int:
+        return int(self.frequency.size)
+
+
+def _cumulative_moments(edges, a, b, gamma, tp):
+    """Energy (m0) and m2 of S = a f^-5 exp(-b f^-4) Phi(f) below each edge frequency.
+
+    The power-law/exponential part has closed forms; the JONSWAP enhancement Phi - 1
+    vanishes (below 1e-16) outside 0.3 < Tp f < 2.0 and is integrated there on a fine
+    grid.
+    """
+    edges = np.asarray(edges, dtype=float)
+    u = np.full(edges.shape, np.inf)
+    pos = edges > 0
+    with np.errstate(over="ignore"):
+        u[pos] = b / edges[pos] ** 4
+    m0 = a / (4.0 * b) * np.exp(-u)
+    m2 = a / (4.0 * np.sqrt(b)) * np.sqrt(np.pi) * special.gammaincc(0.5, u)
+    if gamma != 1.0:
+        x = np.unique(np.concatenate([np.linspace(0.3, 2.0, 40001), [1.0]]))
+        f = x / tp
+        excess = _power_law_shape(f, a, b) * (_jonswap_gamma_factor(x, gamma) - 1.0)
+        c0 = np.concatenate([[0.0], np.cumsum(0.5 * (excess[1:] + excess[:-1]) * np.diff(f))])
+        e2 = excess * f**2
+        c2 = np.concatenate([[0.0], np.cumsum(0.5 * (e2[1:] + e2[:-1]) * np.diff(f))])
+        fe = np.where(np.isfinite(edges), edges, f[-1])
+        m0 = m0 + np.interp(fe, f, c0)
+        m2 = m2 + np.interp(fe, f, c2)
+    return m0, m2
+
+
+def _equal_energy_edges(n, a, b, gamma, tp):
+    """Frequencies (Hz) that split the spectrum's energy into n equal parts (n+1 edges)."""
+    q = np.arange(1, n) / n
+    if gamma == 1.0:
+        inner = (b / -np.log(q)) ** 0.25  # closed form: cumulative = exp(-b f^-4)
+    else:
+        total = _cumulative_moments(np.array([np.inf]), a, b, gamma, tp)[0][0]
+        grid = np.geomspace(0.2, 20.0, 20001) / tp
+        cum = _cumulative_moments(grid, a, b, gamma, tp)[0] / total
+        inner = np.interp(q, cum, grid)
+        for _ in range(3):  # Newton polish: dC/df = S/m0
+            c = _cumulative_moments(inner, a, b, gamma, tp)[0] / total
+            dens = _power_law_shape(inner, a, b) * _jonswap_gamma_factor(inner * tp, gamma)
+            inner = inner - (c - q) * total / dens
+    return np.concatenate([[0.0], inner, [np.inf]])
+
+
+def random_components(h13, t13, s_max=10.0, spectrum="bretschneider-mitsuyasu",
+                      peak_period=None, gamma=3.3, n_freq=DEFAULT_N_FREQ,
+                      n_dir=DEFAULT_N_DIR) -> Components:
+    r"""Discretise a directional random sea into regular components (Goda's method).
+
+    Parameters
+    ----------
+    h13 : float
+        Significant wave height H1/3 (m), > 0.
+    t13 : float
+        Significant wave period T1/3 (s), > 0. For JONSWAP it sets the peak period
+        through :func:`jonswap_peak_period` unless ``peak_period`` is given.
+    s_max : float, optional
+        Mitsuyasu spreading parameter at the peak (-), > 0; default 10 (wind waves).
+        Very large values (1e4) mean long-crested (unidirectional) waves.
+    spectrum : {"bretschneider-mitsuyasu", "jonswap"}, optional
+        Frequency spectrum; default Bretschneider-Mitsuyasu (Goda's form).
+    peak_period : float, optional
+        JONSWAP peak period Tp (s). Not allowed with Bretschneider-Mitsuyasu, whose
+        peak is fixed at Tp = 1.05 T1/3.
+    gamma : float, optional
+        JONSWAP peak enhancement factor (-), default 3.3; ignored for
+        Bretschneider-Mitsuyasu.
+    n_freq : int, optional
+        Number of equal-energy frequency bands, default :data:`DEFAULT_N_FREQ` (12).
+    n_dir : int, optional
+        Number of equal-energy direction bands per frequency band, default
+        :data:`DEFAULT_N_DIR` (36).
+
+    Returns
+    -------
+    Components
+        ``n_freq * n_dir`` components (frequency-major order); see :class:`Components`.
+
+    Raises
+    ------
+    harbor.errors.InputError
+        If a value is out of range or the spectrum is unknown; the message names the
+        scenario key (``height``, ``period``, ``spreading``, ``spectrum``,
+        ``peak_period``, ``gamma``).
+
+    Notes
+    -----
+    The directional spectrum is :math:`S(f) G(\theta | f)` with
+    :math:`G = G_0 \cos^{2s}(\theta/2)` and :math:`s = s(f)` by Goda's rule
+    (:func:`mitsuyasu_s`), :math:`f_p = 1/(1.05\,T_{1/3})` for
+    Bretschneider-Mitsuyasu and :math:`1/T_p` for JONSWAP.
+
+    *Frequency.* Band edges :math:`f_0 = 0 < f_1 < \dots < f_n = \infty` split
+    :math:`m_0` into equal parts. For Bretschneider-Mitsuyasu the cumulative energy is
+    :math:`\exp(-1.03 (T_{1/3} f)^{-4})`, so :math:`f_i = (1.03 / -\ln(i/n))^{1/4} /
+    T_{1/3}` exactly; for JONSWAP the Pierson-Moskowitz part is integrated in closed form
+    and the peak enhancement on a fine grid, then the edges are polished by Newton steps.
+    Each band is represented by :math:`f_i = \sqrt{m_{2,i}/m_{0,i}}`, with the band's
+    :math:`m_2` from the incomplete gamma function (:math:`\int f^{-3} e^{-b f^{-4}} df`
+    is a Gamma(1/2) integral), so the components reproduce :math:`m_0` and :math:`m_2`,
+    hence :math:`T_{m02}`, of the continuous spectrum.
+
+    *Direction.* For each frequency band, with :math:`s` at its representative frequency,
+    the full circle (-pi, pi] is split into ``n_dir`` bands of equal energy using the
+    exact cumulative of :math:`G` (:func:`spreading_cdf`, an incomplete Beta function)
+    and its inverse. The band weight is the exact integral of :math:`G` over the band
+    (:math:`1/n_{dir}`) and the representative angle is the band's energy median
+    (cumulative :math:`(j + 1/2)/n_{dir}`). Equal-energy bands follow the width of
+    :math:`G` whatever s is: for s = 1e4 they all lie within a few degrees of the
+    principal direction, for small s at low frequencies they cover the whole circle.
+    Every component thus carries :math:`1/(n_{freq} n_{dir})` of :math:`m_0`, so none is
+    negligible and none is dropped; the weights are renormalised to sum to exactly 1.
+
+    *Defaults.* With 12 x 36 components the effective diffraction coefficient
+    :math:`K_{eff}^2 = \sum w K'^2` of a semi-infinite breakwater (Sommerfeld's solution,
+    s_max 10 and 1e4, normal and oblique principal directions, points on the shadow
+    line, deep in the shadow and on the illuminated side) is within 0.01 of the value
+    with 48 x 144 components (see tests/test_spectra.py).
+
+    References
+    ----------
+    .. [1] Goda, Y., Takayama, T., & Suzuki, Y. (1978). Diffraction diagrams for
+       directional random waves. *Proc. 16th International Conference on Coastal
+       Engineering*, ASCE, 628-650.
+    .. [2] Goda, Y. (2010). *Random Seas and Design of Maritime Structures* (3rd ed.).
+       World Scientific, sections 2.3 and 3.2.
+    .. [3] Mitsuyasu, H., Tasai, F., Suhara, T., Mizuno, S., Ohkusu, M., Honda, T., &
+       Rikiishi, K. (1975). Observations of the directional spectrum of ocean waves using
+       a cloverleaf buoy. *Journal of Physical Oceanography*, 5(4), 750-760.
+    """
+    def _num(key, value, what):
+        try:
+            v = float(value)
+        except (TypeError, ValueError):
+            raise InputError(f"{what} must be a number, got {value!r}", key=key) from None
+        if not np.isfinite(v) or v <= 0:
+            raise InputError(f"{what} must be positive, got {value!r}", key=key)
+        return v
+
+    h13 = _num("height", h13, "significant wave height H1/3 (m)")
+    t13 = _num("period", t13, "significant wave period T1/3 (s)")
+    s_max = _num("spreading", s_max, "spreading parameter s_max")
+    name = str(spectrum).strip().lower().replace("_", "-")
+    if name not in _SPECTRA:
+        raise InputError(f"unknown spectrum {spectrum!r}; use one of {', '.join(_SPECTRA)}",
+                         key="spectrum")
+    for key, n in (("n_freq", n_freq), ("n_dir", n_dir)):
+        if isinstance(n, bool) or int(n) != n or n < 1:
+            raise InputError(f"number of bands must be a positive integer, got {n!r}", key=key)
+    n_freq, n_dir = int(n_freq), int(n_dir)
+
+    if name == "bretschneider-mitsuyasu":
+        if peak_period is not None:
+            raise InputError("peak_period applies to spectrum 'jonswap' only; the "
+                             "Bretschneider-Mitsuyasu peak is at 1.05 T1/3", key="peak_period")
+        g = 1.0
+        tp = BM_PEAK_RATIO * t13
+        a, b = _BM_A * h13**2 / t13**4, _BM_B / t13**4
+    else:
+        g = _num("gamma", gamma, "peak enhancement factor gamma")
+        tp = (jonswap_peak_period(t13, g) if peak_period is None
+              else _num("peak_period", peak_period, "peak period Tp (s)"))
+        a, b = _jonswap_beta(g) * h13**2 / tp**4, _JS_B / tp**4
+    fp = 1.0 / tp
+
+    edges = _equal_energy_edges(n_freq, a, b, g, tp)
+    c0, c2 = _cumulative_moments(edges, a, b, g, tp)
+    band_m0, band_m2 = np.diff(c0), np.diff(c2)
+    m0, m2 = c0[-1], c2[-1]
+    f_rep = np.sqrt(band_m2 / band_m0)
+
+    s = mitsuyasu_s(f_rep, fp, s_max)
+    q_edges = np.arange(n_dir + 1) / n_dir
+    theta_edges = _spreading_quantile(q_edges[None, :], s[:, None])
+    theta_edges[:, 0], theta_edges[:, -1] = -np.pi, np.pi
+    dir_weight = np.diff(spreading_cdf(theta_edges, s[:, None]), axis=1)
+    angle = _spreading_quantile((np.arange(n_dir) + 0.5)[None, :] / n_dir, s[:, None])
+
+    weight = (band_m0 / m0)[:, None] * dir_weight
+    freq = np.broadcast_to(f_rep[:, None], weight.shape).ravel()
+    weight = weight.ravel()
+    angle = angle.ravel()
+    keep = weight >= 1e-6 * weight.sum()
+    weight = weight[keep] / weight[keep].sum()
+    freq, angle = freq[keep], angle[keep]
+    return Components(frequency=freq, period=1.0 / freq, angle=angle, weight=weight,
+                      m0=float(m0), m0_target=h13**2 / 16.0, tm02=float(np.sqrt(m0 / m2)))
