@@ -188,8 +188,6 @@ def test_arm_ending_on_another_arm_is_a_junction_not_a_head():
 
 def test_default_bounds_ignore_a_large_land_polygon():
     d = base()
-    del d["grid"]["spacing"]
-    d["grid"] = {"spacing": 5.0}
     d["land"][0]["outline"] = [xy(-50000, 0), xy(50000, 0), xy(50000, -40000),
                                xy(-50000, -40000)]
     sc = scenario_from_dict(d)

@@ -503,7 +503,8 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
             raise r.err("needs at least three distinct vertices", where, "outline")
         poly = shapely.Polygon(aw)
         if not poly.is_valid:
-            reason = shapely.is_valid_reason(poly)
+            # the reason carries work-frame coordinates, which the user never wrote
+            reason = shapely.is_valid_reason(poly).split("[")[0].strip()
             raise r.err(f"the outline is not a valid polygon ({reason}); it must not "
                         "cross itself", where, "outline")
         if poly.area <= 0:
@@ -576,11 +577,11 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
 
 def _unique(r: _Reader, items, kind):
     seen = {}
-    for where, name in items:
+    for i, (where, name) in enumerate(items):
         if name in seen:
-            raise r.err(f"duplicate {kind} name {name!r} (also used by {seen[name]})",
-                        where, "name")
-        seen[name] = where
+            raise r.err(f"duplicate {kind} name {name!r} (the [[{kind}]] tables "
+                        f"#{seen[name] + 1} and #{i + 1} share it)", where, "name")
+        seen[name] = i
 
 
 def _read_sea(r: _Reader, t: dict, i: int) -> Sea:
@@ -618,8 +619,22 @@ def _read_sea(r: _Reader, t: dict, i: int) -> Sea:
 
 
 def grid_size(bounds, spacing: float) -> int:
-    """Number of grid points for ``bounds`` (m) at ``spacing`` (m), counted generously
-    (both ends included, a partial step rounded up)."""
+    """Number of grid points a grid over ``bounds`` at ``spacing`` may hold.
+
+    Parameters
+    ----------
+    bounds : sequence of float
+        ``(xmin, ymin, xmax, ymax)``, m (work frame).
+    spacing : float
+        Grid spacing, m.
+
+    Returns
+    -------
+    int
+        (⌈w/Δ⌉ + 1)(⌈h/Δ⌉ + 1) with w, h the sides and Δ the spacing: counted
+        generously (both ends included, a partial step rounded up), so that any grid
+        the solver builds over these bounds is no larger.
+    """
     w, h = bounds[2] - bounds[0], bounds[3] - bounds[1]
     return (math.ceil(w / spacing) + 1) * (math.ceil(h / spacing) + 1)
 
