@@ -280,8 +280,10 @@ def _wrap(theta):
 
 
 def _log_g0(s):
-    return ((2.0 * s - 1.0) * np.log(2.0) + 2.0 * special.gammaln(s + 1.0)
-            - np.log(np.pi) - special.gammaln(2.0 * s + 1.0))
+    # Legendre's duplication formula turns G0 into Gamma(s+1) / (2 sqrt(pi) Gamma(s+1/2));
+    # the Pochhammer symbol gives that ratio without the cancellation of differences of
+    # log-gamma values (which loses 1e-10 relative at s = 2.5e5).
+    return np.log(special.poch(s + 0.5, 0.5)) - np.log(2.0 * np.sqrt(np.pi))
 
 
 def mitsuyasu_spreading(theta, s):
@@ -308,9 +310,11 @@ def mitsuyasu_spreading(theta, s):
         G(\theta) = G_0 \cos^{2s}(\theta/2), \qquad
         G_0 = \frac{2^{2s-1}\, \Gamma(s+1)^2}{\pi\, \Gamma(2s+1)}
 
-    evaluated as :math:`\exp[\ln G_0 + 2s \ln\cos(\theta/2)]` with log-gamma functions,
-    so that s up to 1e4 and beyond (long-crested seas) neither overflows nor loses
-    precision. For large s, :math:`G_0 \approx \sqrt{s/(4\pi)}`.
+    evaluated as :math:`\exp[\ln G_0 + 2s \ln\cos(\theta/2)]`, with
+    :math:`G_0 = \Gamma(s+1) / (2\sqrt{\pi}\,\Gamma(s+1/2))` (Legendre's duplication
+    formula) computed as a Pochhammer symbol, so that s up to 1e4 and far beyond
+    (long-crested seas) neither overflows nor loses precision. For large s,
+    :math:`G_0 \approx \sqrt{s/(4\pi)}`.
 
     References
     ----------
@@ -416,6 +420,10 @@ class Components:
         return int(self.frequency.size)
 
 
+def _cumulative_trapezoid(y, x):
+    return np.concatenate([[0.0], np.cumsum(0.5 * (y[1:] + y[:-1]) * np.diff(x))])
+
+
 def _cumulative_moments(edges, a, b, gamma, tp):
     """Energy (m0) and m2 of S = a f^-5 exp(-b f^-4) Phi(f) below each edge frequency.
 
@@ -434,9 +442,8 @@ def _cumulative_moments(edges, a, b, gamma, tp):
         x = np.unique(np.concatenate([np.linspace(0.3, 2.0, 40001), [1.0]]))
         f = x / tp
         excess = _power_law_shape(f, a, b) * (_jonswap_gamma_factor(x, gamma) - 1.0)
-        c0 = np.concatenate([[0.0], np.cumsum(0.5 * (excess[1:] + excess[:-1]) * np.diff(f))])
-        e2 = excess * f**2
-        c2 = np.concatenate([[0.0], np.cumsum(0.5 * (e2[1:] + e2[:-1]) * np.diff(f))])
+        c0 = _cumulative_trapezoid(excess, f)
+        c2 = _cumulative_trapezoid(excess * f**2, f)
         fe = np.where(np.isfinite(edges), edges, f[-1])
         m0 = m0 + np.interp(fe, f, c0)
         m2 = m2 + np.interp(fe, f, c2)
@@ -529,11 +536,17 @@ def random_components(h13, t13, s_max=10.0, spectrum="bretschneider-mitsuyasu",
     Every component thus carries :math:`1/(n_{freq} n_{dir})` of :math:`m_0`, so none is
     negligible and none is dropped; the weights are renormalised to sum to exactly 1.
 
-    *Defaults.* With 12 x 36 components the effective diffraction coefficient
-    :math:`K_{eff}^2 = \sum w K'^2` of a semi-infinite breakwater (Sommerfeld's solution,
-    s_max 10 and 1e4, normal and oblique principal directions, points on the shadow
-    line, deep in the shadow and on the illuminated side) is within 0.01 of the value
-    with 48 x 144 components (see tests/test_spectra.py).
+    *Defaults.* 12 x 36 = 432 components. :math:`K_{eff}^2 = \sum w K'^2` behind a
+    semi-infinite breakwater (Sommerfeld's solution; components travelling away from
+    the seaward side counted as K' = 1 in front, 0 behind) differs from the value with
+    48 x 144 components by at most 0.008 over T1/3 = 6 and 12 s (h = 10 m), s_max = 10,
+    25, 75 and 1e4, both spectra, principal directions 20-160 deg and points 0.5-10 peak
+    wavelengths from the tip on the shadow line, up to 60 deg into the shadow and on the
+    illuminated side (10 x 36: 0.009; 12 x 24: 0.015; 8 x 24: 0.017). In standing-wave
+    zones (in front of a reflecting face, more than about a wavelength from it) no fixed
+    set of components converges to 0.01: the incident-reflected interference averages
+    out over the spectrum only as fast as the components resolve its phase 2kd, and a
+    residual pattern of a few hundredths in K_eff remains at any practical resolution.
 
     References
     ----------
@@ -564,13 +577,15 @@ def random_components(h13, t13, s_max=10.0, spectrum="bretschneider-mitsuyasu",
                          key="spectrum")
     for key, n in (("n_freq", n_freq), ("n_dir", n_dir)):
         if isinstance(n, bool) or int(n) != n or n < 1:
-            raise InputError(f"number of bands must be a positive integer, got {n!r}", key=key)
+            raise InputError(f"number of bands must be a positive integer, got {n!r}",
+                             key=key)
     n_freq, n_dir = int(n_freq), int(n_dir)
 
     if name == "bretschneider-mitsuyasu":
         if peak_period is not None:
             raise InputError("peak_period applies to spectrum 'jonswap' only; the "
-                             "Bretschneider-Mitsuyasu peak is at 1.05 T1/3", key="peak_period")
+                             "Bretschneider-Mitsuyasu peak is at 1.05 T1/3",
+                             key="peak_period")
         g = 1.0
         tp = BM_PEAK_RATIO * t13
         a, b = _BM_A * h13**2 / t13**4, _BM_B / t13**4

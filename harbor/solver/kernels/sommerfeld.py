@@ -84,8 +84,10 @@ def sommerfeld_terms(x, y, k, alpha, amplitude=amplitude_reference):
     root = np.sqrt(2.0 * k * r)
     s1 = root * np.cos(0.5 * (theta - theta0))
     s2 = root * np.cos(0.5 * (theta + theta0))
-    lit1 = s1 >= 0.0
-    lit2 = s2 >= 0.0
+    # Points on a shadow or reflection boundary (s = 0 up to rounding) count as lit, the
+    # same rule the layout's ray tests use, so the two halves of the field always match.
+    lit1 = s1 >= -1e-9
+    lit2 = s2 >= -1e-9
     spread = np.exp(1j * k * r)
     d = spread * (np.where(lit1, -1.0, 1.0) * amplitude(np.abs(s1))
                   + np.where(lit2, -1.0, 1.0) * amplitude(np.abs(s2)))

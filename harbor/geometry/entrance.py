@@ -1,0 +1,101 @@
+"""Recognise the classic entrance: two arms whose free heads face each other on one line.
+
+Pure geometry. The solver decides, with the wavelength, whether the exact gap solution
+applies.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+#: End segments are "collinear" when each is within this angle of the line through the
+#: two heads (degrees).
+COLLINEAR_TOLERANCE_DEG = 2.0
+
+
+@dataclass(frozen=True)
+class Entrance:
+    """A gap between two heads.
+
+    Attributes
+    ----------
+    arms : tuple of int
+        Indices of the two arms (first: the one at ``heads[0]``).
+    heads : numpy.ndarray, shape (2, 2)
+        Head positions (m).
+    width : float
+        Distance between the heads (m).
+    center : numpy.ndarray, shape (2,)
+        Midpoint of the heads (m).
+    axis : numpy.ndarray, shape (2,)
+        Unit vector from ``heads[0]`` to ``heads[1]``.
+    basin_normal : numpy.ndarray, shape (2,)
+        Unit normal to the axis pointing into the basin (towards the arms' bodies); the
+        zero vector when the arms are straight and the side is undecided.
+    collinear : bool
+        True when both end segments lie along the axis within
+        :data:`COLLINEAR_TOLERANCE_DEG`.
+    end_lengths : tuple of float
+        Lengths of the two end segments (m).
+    rooted_far_ends : tuple of bool
+        Whether each arm's other end is rooted (on land).
+    misalignment_deg : float
+        Largest angle between an end segment and the axis (degrees).
+    """
+
+    arms: tuple
+    heads: np.ndarray
+    width: float
+    center: np.ndarray
+    axis: np.ndarray
+    basin_normal: np.ndarray
+    collinear: bool
+    end_lengths: tuple
+    rooted_far_ends: tuple
+    misalignment_deg: float
+
+
+def _free_heads(arm):
+    """(tip, inward unit vector, end-segment length, other end rooted) for each free head."""
+    p = np.asarray(arm.line, float)
+    out = []
+    if not arm.rooted_start:
+        d = p[1] - p[0]
+        out.append((p[0], d / np.hypot(*d), float(np.hypot(*d)), arm.rooted_end))
+    if not arm.rooted_end:
+        d = p[-2] - p[-1]
+        out.append((p[-1], d / np.hypot(*d), float(np.hypot(*d)), arm.rooted_start))
+    return out
+
+
+def nearest_heads(layout):
+    """The closest pair of free heads on different arms, as an :class:`Entrance`, or None."""
+    best = None
+    arms = layout.arms
+    for i in range(len(arms)):
+        for j in range(i + 1, len(arms)):
+            for hi in _free_heads(arms[i]):
+                for hj in _free_heads(arms[j]):
+                    d = float(np.hypot(*(hj[0] - hi[0])))
+                    if d > 0 and (best is None or d < best[0]):
+                        best = (d, i, j, hi, hj)
+    if best is None:
+        return None
+    d, i, j, hi, hj = best
+    axis = (hj[0] - hi[0]) / d
+    # arm i's inward vector should point away from the gap (-axis), arm j's along +axis
+    mis_i = np.degrees(np.arccos(np.clip(-np.dot(hi[1], axis), -1, 1)))
+    mis_j = np.degrees(np.arccos(np.clip(np.dot(hj[1], axis), -1, 1)))
+    mis = float(max(mis_i, mis_j))
+    normal = np.array([-axis[1], axis[0]])
+    body = np.concatenate([np.asarray(arms[i].line, float), np.asarray(arms[j].line, float)])
+    side = float(np.mean((body - 0.5 * (hi[0] + hj[0])) @ normal))
+    scale = max(d, 1.0)
+    basin = normal * np.sign(side) if abs(side) > 1e-6 * scale else np.zeros(2)
+    return Entrance(arms=(i, j), heads=np.array([hi[0], hj[0]]), width=d,
+                    center=0.5 * (hi[0] + hj[0]), axis=axis, basin_normal=basin,
+                    collinear=mis <= COLLINEAR_TOLERANCE_DEG,
+                    end_lengths=(hi[2], hj[2]), rooted_far_ends=(hi[3], hj[3]),
+                    misalignment_deg=mis)

@@ -1,0 +1,317 @@
+r"""The wave field of one regular (monochromatic, long-crested) sea over a whole layout.
+
+Two methods (DESIGN.md sect. 4):
+
+* the classic entrance -- two arms whose free heads face each other with collinear end
+  segments, rooted on land or long compared with the wavelength -- uses
+  :func:`harbor.solver.kernels.gap.gap` in the entrance's own frame, so that narrow
+  entrances get the exact aperture solution;
+* any other layout uses geometric optics of the whole layout (the incident wave where the
+  up-wave ray meets no arm or land, first-order reflection from the seaward faces of the
+  arms) plus, for every lit head, the diffracted wave of that head's own semi-infinite
+  solution along its end segment, where the head is visible. For a collinear gap this
+  reduces exactly to the Penney & Price superposition.
+
+Coordinates are metres in the work frame; directions are math angles (rad, counter-
+clockwise from +x) of the direction of wave travel.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from harbor.geometry.entrance import nearest_heads
+from harbor.geometry.visibility import layout_segments, ray_blocked, segment_blocked
+from harbor.solver.kernels.gap import AUTO_EXACT_BELOW, auto_method, gap
+from harbor.solver.kernels.sommerfeld import sommerfeld_terms
+
+#: Arms whose far end is not rooted still count as "long" for the classic entrance when
+#: their end segment is at least this many wavelengths long.
+LONG_ARM_WAVELENGTHS = 3.0
+#: Waves closer than this to parallel with an arm's end segment (degrees) are grazing:
+#: that head's local solution is evaluated a hair off parallel.
+GRAZING_DEG = 0.01
+
+METHOD_GAP_EXACT = "exact aperture solution (classic entrance)"
+METHOD_GAP_SUPERPOSITION = "Penney & Price superposition (classic entrance)"
+METHOD_GENERAL = "geometric optics + head diffraction (general layout)"
+
+
+@dataclass
+class FieldInfo:
+    """What one regular solve did: the method used and the validity warnings."""
+
+    method: str
+    warnings: list = field(default_factory=list)
+    lit_heads: int = 0
+
+
+def classic_entrance(layout, wavelength):
+    """The layout's classic entrance for this wavelength, or None.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+    wavelength : float
+        L (m).
+
+    Returns
+    -------
+    harbor.geometry.entrance.Entrance or None
+        Returned when the layout has exactly two arms, each with one free head, the heads
+        facing each other with end segments collinear within 2 degrees, each arm rooted
+        at its far end or with an end segment of at least
+        :data:`LONG_ARM_WAVELENGTHS` wavelengths.
+    """
+    if len(layout.arms) != 2:
+        return None
+    if any((not a.rooted_start) + (not a.rooted_end) != 1 for a in layout.arms):
+        return None
+    ent = nearest_heads(layout)
+    if ent is None or not ent.collinear:
+        return None
+    for rooted, length in zip(ent.rooted_far_ends, ent.end_lengths):
+        if not rooted and length < LONG_ARM_WAVELENGTHS * wavelength:
+            return None
+    return ent
+
+
+def _local(px, py, origin, ex, ey):
+    dx = px - origin[0]
+    dy = py - origin[1]
+    return dx * ex[0] + dy * ex[1], dx * ey[0] + dy * ey[1]
+
+
+def gap_field(entrance, px, py, wavelength, alpha, method="auto"):
+    """Field of a classic entrance at world points, or None if the waves come from the basin.
+
+    Parameters
+    ----------
+    entrance : harbor.geometry.entrance.Entrance
+    px, py : numpy.ndarray
+        Points (m, work frame).
+    wavelength : float
+        L (m).
+    alpha : float
+        Direction of travel (rad, math angle in the work frame).
+    method : str
+        Passed to :func:`harbor.solver.kernels.gap.gap`.
+
+    Returns
+    -------
+    (numpy.ndarray of complex, str) or None
+        The field (incident phase zero at the work-frame origin) and the gap method used.
+    """
+    d = np.array([np.cos(alpha), np.sin(alpha)])
+    e = entrance.axis
+    n = np.array([-e[1], e[0]])
+    if np.dot(d, n) < 0:
+        n = -n
+    if np.dot(entrance.basin_normal, n) < 0:
+        return None                       # travelling out of the basin towards the sea
+    along = float(np.dot(d, e))
+    across = float(np.dot(d, n))
+    local_dir = np.degrees(np.arctan2(across, along))
+    if not (GRAZING_DEG < local_dir < 180 - GRAZING_DEG):
+        return None
+    x, y = _local(px, py, entrance.center, e, n)
+    k = 2 * np.pi / wavelength
+    phase0 = np.exp(1j * k * np.dot(d, entrance.center))
+    if method == "auto":
+        method = auto_method(wavelength, local_dir, entrance.width)
+    return phase0 * gap(x, y, wavelength, local_dir, entrance.width, method=method), method
+
+
+def general_field(layout, px, py, wavelength, alpha, segments=None):
+    r"""Geometric optics of the whole layout plus each lit head's diffracted wave.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+    px, py : numpy.ndarray
+        Points (m, work frame), same shape.
+    wavelength : float
+        L (m).
+    alpha : float
+        Direction of travel (rad, math angle in the work frame).
+    segments : tuple, optional
+        Output of :func:`harbor.geometry.visibility.layout_segments` (to reuse).
+
+    Returns
+    -------
+    u : numpy.ndarray of complex
+        Field normalised by the incident amplitude, incident phase zero at the origin.
+    lit_heads : int
+        Number of heads the incident wave reaches.
+
+    Notes
+    -----
+    .. math::
+
+        u = \chi_i\, e^{ik\,\mathbf d\cdot\mathbf x}
+          + \sum_{\text{faces}} \chi_r\, e^{ik[\mathbf d\cdot\mathbf a
+            + \mathbf d_r\cdot(\mathbf x - \mathbf a)]}
+          + \sum_{\text{lit heads}} \chi_h\, e^{ik\,\mathbf d\cdot\mathbf h}\, D_h(\mathbf x)
+
+    with :math:`\chi` the visibility indicators, :math:`\mathbf d_r` the mirror image of
+    the travel direction in a face and :math:`D_h` the diffracted part of Sommerfeld's
+    solution for the head h and its end segment
+    (:func:`harbor.solver.kernels.sommerfeld.sommerfeld_terms`).
+
+    References
+    ----------
+    .. [1] Penney, W. G., & Price, A. T. (1952). The diffraction theory of sea waves and
+       the shelter afforded by breakwaters. *Phil. Trans. R. Soc. Lond. A*, 244(882),
+       236-253.
+    .. [2] Keller, J. B. (1962). Geometrical theory of diffraction. *Journal of the
+       Optical Society of America*, 52(2), 116-130.
+    """
+    if segments is None:
+        segments = layout_segments(layout)
+    segments, owner, open_ends = segments
+    px, py = np.broadcast_arrays(np.asarray(px, float), np.asarray(py, float))
+    shape = px.shape
+    px = px.ravel()
+    py = py.ravel()
+    k = 2 * np.pi / wavelength
+    d = np.array([np.cos(alpha), np.sin(alpha)])
+    up = -d
+    u = np.zeros(px.shape, complex)
+
+    # incident wave
+    lit = ~ray_blocked(px, py, up, segments, open_ends=open_ends)
+    u[lit] = np.exp(1j * k * (px[lit] * d[0] + py[lit] * d[1]))
+
+    # first-order reflection from the seaward face of every arm segment
+    is_arm = np.array([o.startswith("arm:") for o in owner], bool)
+    for si in np.nonzero(is_arm)[0]:
+        a, b = segments[si]
+        t = b - a
+        length = np.hypot(*t)
+        n = np.array([-t[1], t[0]]) / length
+        if np.dot(n, d) > 0:
+            n = -n                          # the face the waves strike
+        dn = float(np.dot(d, n))
+        if dn > -1e-12:
+            continue
+        dr = d - 2 * dn * n
+        front = (px - a[0]) * n[0] + (py - a[1]) * n[1]
+        cand = front > 0
+        if not np.any(cand):
+            continue
+        qx_t = front[cand] / np.dot(dr, n)
+        qx = px[cand] - qx_t * dr[0]
+        qy = py[cand] - qx_t * dr[1]
+        s = ((qx - a[0]) * t[0] + (qy - a[1]) * t[1]) / length**2
+        on = (s >= -1e-9) & (s <= 1 + 1e-9)
+        if not np.any(on):
+            continue
+        idx = np.nonzero(cand)[0][on]
+        qx, qy = qx[on], qy[on]
+        skip = np.zeros(len(segments), bool)
+        skip[si] = True
+        ok = ~ray_blocked(qx, qy, up, segments, skip=skip, open_ends=open_ends)
+        ok &= ~segment_blocked(px[idx], py[idx], qx, qy, segments, skip=skip)
+        idx = idx[ok]
+        phase = np.dot(d, a) + (px[idx] - a[0]) * dr[0] + (py[idx] - a[1]) * dr[1]
+        u[idx] += np.exp(1j * k * phase)
+
+    # diffraction by each lit head
+    n_lit = 0
+    for arm in layout.arms:
+        for tip, inward in arm.heads():
+            if ray_blocked(np.array([tip[0]]), np.array([tip[1]]), up, segments,
+                           open_ends=open_ends)[0]:
+                continue
+            n_lit += 1
+            ey = np.array([-inward[1], inward[0]])
+            if np.dot(ey, d) < 0:
+                ey = -ey
+            local = np.arctan2(np.dot(d, ey), np.dot(d, inward))
+            local = np.clip(local, np.radians(GRAZING_DEG), np.pi - np.radians(GRAZING_DEG))
+            seen = ~segment_blocked(px, py, tip[0], tip[1], segments)
+            if not np.any(seen):
+                continue
+            xl, yl = _local(px[seen], py[seen], tip, inward, ey)
+            _, _, diff = sommerfeld_terms(xl, yl, k, local)
+            u[seen] += np.exp(1j * k * np.dot(d, tip)) * diff
+    return u.reshape(shape), n_lit
+
+
+def layout_field(layout, px, py, wavelength, alpha, method="auto"):
+    """Field of one regular sea over a layout, choosing the method.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+    px, py : numpy.ndarray
+        Points (m, work frame).
+    wavelength : float
+        L (m).
+    alpha : float
+        Direction of travel (rad, math angle, work frame).
+    method : {"auto", "general", "superposition", "exact"}
+        ``"auto"``: the classic entrance uses :func:`harbor.gap` (exact or superposition
+        by :func:`harbor.solver.kernels.gap.auto_method`), anything else the general
+        method. ``"general"`` forces the general method; ``"superposition"``/``"exact"``
+        force that gap method where a classic entrance exists.
+
+    Returns
+    -------
+    u : numpy.ndarray of complex
+    info : FieldInfo
+    """
+    px = np.asarray(px, float)
+    py = np.asarray(py, float)
+    if method != "general":
+        ent = classic_entrance(layout, wavelength)
+        if ent is not None:
+            got = gap_field(ent, px, py, wavelength, alpha,
+                            method="auto" if method == "auto" else method)
+            if got is not None:
+                u, used = got
+                name = METHOD_GAP_EXACT if used == "exact" else METHOD_GAP_SUPERPOSITION
+                return u, FieldInfo(method=name, lit_heads=2)
+    u, n_lit = general_field(layout, px, py, wavelength, alpha)
+    return u, FieldInfo(method=METHOD_GENERAL, lit_heads=n_lit)
+
+
+def layout_warnings(layout, wavelength, point_xy=()):
+    """Validity warnings that depend on the layout and the wavelength (not the direction).
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+    wavelength : float
+        L (m).
+    point_xy : sequence of (name, x, y)
+        Named points to check against the heads.
+
+    Returns
+    -------
+    list of str
+    """
+    out = []
+    ent = nearest_heads(layout)
+    if ent is not None and classic_entrance(layout, wavelength) is None:
+        ratio = ent.width / wavelength
+        if ratio < AUTO_EXACT_BELOW:
+            names = (layout.arms[ent.arms[0]].name, layout.arms[ent.arms[1]].name)
+            why = (f"end segments {ent.misalignment_deg:.0f} deg from collinear"
+                   if not ent.collinear else "the arms are not rooted or long enough")
+            out.append(
+                f"entrance between '{names[0]}' and '{names[1]}' is {ent.width:.0f} m wide "
+                f"({ratio:.2f} L) but not a classic entrance ({why}): the general method "
+                f"ignores the interaction of the two heads, K' in the lee may be off by "
+                f"0.05 or more")
+    for name, x, y in point_xy:
+        for arm in layout.arms:
+            for tip, _ in arm.heads():
+                dist = float(np.hypot(x - tip[0], y - tip[1]))
+                if dist < 0.5 * wavelength:
+                    out.append(f"point '{name}' is {dist:.0f} m from the head of '{arm.name}', "
+                               f"within half a wavelength ({0.5 * wavelength:.0f} m): "
+                               f"near-field values are sensitive to the head's real shape")
+    return out
