@@ -1,0 +1,144 @@
+"""Compiled (numba) inner loops of the kernels, parallel over points.
+
+These are the hot paths of directional random seas: the Hankel matrix of the aperture
+solution and the diffraction amplitude of Sommerfeld's solution. Each function has a
+numpy twin in its kernel module; the tests compare the two with scipy and mpmath.
+If numba is not installed the kernels fall back to numpy (slower, same results).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from scipy import special
+
+try:  # numba is a declared dependency; the fallback keeps the package importable without it
+    import numba
+
+    HAVE_NUMBA = True
+except Exception:  # pragma: no cover
+    HAVE_NUMBA = False
+
+from harbor.solver.kernels.fresnel import _DER as _A_DER
+from harbor.solver.kernels.fresnel import _N_TABLE as _A_N
+from harbor.solver.kernels.fresnel import _VAL as _A_VAL
+
+_EULER_GAMMA = 0.5772156649015329
+_Z_SERIES = 8.0
+_Z_ASYM = 25.0
+_H_STEP = 1.0 / 128.0
+
+
+def _h0_table():
+    # g(z) = H0(z) e^{-iz} sqrt(z) is smooth on [8, 25]: tabulated with its derivative
+    # for cubic Hermite interpolation (H0' = -H1).
+    z = np.arange(_Z_SERIES, _Z_ASYM + 2 * _H_STEP, _H_STEP)
+    h0 = special.hankel1(0, z)
+    h1 = special.hankel1(1, z)
+    mod = np.exp(-1j * z) * np.sqrt(z)
+    g = h0 * mod
+    dg = (-h1 - 1j * h0 + h0 / (2 * z)) * mod
+    return g, dg
+
+
+_G_VAL, _G_DER = _h0_table()
+_ASYM = np.array([1.0, -1 / 8, 9 / 128, -75 / 1024, 3675 / 32768, -59535 / 262144,
+                  2401245 / 4194304, -57972915 / 33554432])
+
+if HAVE_NUMBA:
+
+    @numba.njit(cache=True, fastmath=False, inline="always")
+    def _h0(z, gval, gder, asym):
+        if z >= _Z_ASYM:
+            w = 1j / z
+            s = asym[7] + 0j
+            for i in range(6, -1, -1):
+                s = s * w + asym[i]
+            return np.sqrt(2.0 / (np.pi * z)) * np.exp(1j * (z - 0.25 * np.pi)) * s
+        if z >= _Z_SERIES:
+            pos = (z - _Z_SERIES) / _H_STEP
+            i = int(pos)
+            s = pos - i
+            s2 = s * s
+            s3 = s2 * s
+            g = ((2 * s3 - 3 * s2 + 1) * gval[i] + (-2 * s3 + 3 * s2) * gval[i + 1]
+                 + _H_STEP * ((s3 - 2 * s2 + s) * gder[i] + (s3 - s2) * gder[i + 1]))
+            return g * np.exp(1j * z) / np.sqrt(z)
+        q = 0.25 * z * z
+        term = 1.0
+        j0 = 1.0
+        ysum = 0.0
+        harm = 0.0
+        for kk in range(1, 40):
+            term *= -q / (kk * kk)
+            harm += 1.0 / kk
+            j0 += term
+            ysum -= harm * term
+            if abs(term) < 1e-17 * (1.0 + abs(j0)):
+                break
+        y0 = (2.0 / np.pi) * ((np.log(0.5 * z) + _EULER_GAMMA) * j0 + ysum)
+        return j0 + 1j * y0
+
+    @numba.njit(cache=True, parallel=True)
+    def _hankel_matrix(xp, yp, xs, k, gval, gder, asym):
+        n = xp.size
+        m = xs.size
+        out = np.empty((n, m), np.complex128)
+        for p in numba.prange(n):
+            for j in range(m):
+                dx = xp[p] - xs[j]
+                z = k * np.sqrt(dx * dx + yp[p] * yp[p])
+                out[p, j] = _h0(z, gval, gder, asym)
+        return out
+
+    @numba.njit(cache=True, parallel=True)
+    def _amplitude(t, val, der, ntab):
+        out = np.empty(t.size, np.complex128)
+        h = 1.0 / ntab
+        for p in numba.prange(t.size):
+            u = 1.0 / (1.0 + t[p])
+            pos = u * ntab
+            i = min(int(pos), ntab - 1)
+            s = pos - i
+            s2 = s * s
+            s3 = s2 * s
+            out[p] = ((2 * s3 - 3 * s2 + 1) * val[i] + (-2 * s3 + 3 * s2) * val[i + 1]
+                      + h * ((s3 - 2 * s2 + s) * der[i] + (s3 - s2) * der[i + 1]))
+        return out
+
+
+def hankel_matrix(xp, yp, xs, k):
+    """Matrix ``H[p, j] = H0^(1)(k * hypot(xp[p] - xs[j], yp[p]))`` (complex).
+
+    Parameters
+    ----------
+    xp, yp : numpy.ndarray, shape (n,)
+        Points (m).
+    xs : numpy.ndarray, shape (m,)
+        Source abscissae on y = 0 (m).
+    k : float
+        Wavenumber (rad/m).
+
+    Notes
+    -----
+    Power series of J0 and Y0 (Abramowitz & Stegun 1964, 9.1.12-13) below z = 8, cubic
+    Hermite interpolation of :math:`H_0^{(1)}(z) e^{-iz}\\sqrt z` between 8 and 25, the
+    Hankel asymptotic expansion (A&S 9.2.7) above; relative error below 1e-10 (tests).
+    """
+    xp = np.ascontiguousarray(xp, float).ravel()
+    yp = np.ascontiguousarray(yp, float).ravel()
+    xs = np.ascontiguousarray(xs, float)
+    if HAVE_NUMBA:
+        return _hankel_matrix(xp, yp, xs, float(k), _G_VAL, _G_DER, _ASYM)
+    from harbor.solver.kernels.hankel import hankel0  # pragma: no cover
+
+    return hankel0(k * np.hypot(xp[:, None] - xs[None, :], yp[:, None]))  # pragma: no cover
+
+
+def amplitude(t):
+    """Diffraction amplitude A(t) of :mod:`harbor.solver.kernels.fresnel`, compiled."""
+    t = np.asarray(t, float)
+    if HAVE_NUMBA:
+        return _amplitude(np.ascontiguousarray(t).ravel(), _A_VAL, _A_DER, _A_N).reshape(t.shape)
+    from harbor.solver.kernels.fresnel import diffraction_amplitude  # pragma: no cover
+
+    return diffraction_amplitude(t)  # pragma: no cover
