@@ -8,5 +8,8 @@ __version__ = "0.1.0"
 
 from harbor.solver.kernels import gap, semi_infinite  # noqa: E402
 from harbor.waves import wavelength, wavenumber  # noqa: E402
+from harbor.study.scenario import load_scenario  # noqa: E402
+from harbor.solver.assemble import check, solve  # noqa: E402
 
-__all__ = ["__version__", "gap", "semi_infinite", "wavelength", "wavenumber"]
+__all__ = ["__version__", "check", "gap", "load_scenario", "semi_infinite", "solve",
+           "wavelength", "wavenumber"]

@@ -198,7 +198,7 @@ def fill_levels(values: np.ndarray, show: str, sea_height: float):
 
 # --------------------------------------------------------------------------- layout
 
-def fit_axes_rect(fig, box, xlim, ylim, scale=None):
+def fit_axes_rect(fig, box, xlim, ylim, scale=None, halign="left"):
     """Place an axes of equal aspect inside ``box`` (inches) and return it.
 
     Parameters
@@ -211,6 +211,8 @@ def fit_axes_rect(fig, box, xlim, ylim, scale=None):
     scale : float, optional
         If given, print at exactly 1:scale (metres of ground per metre of paper); the
         axes may then be smaller than ``box``. Otherwise the largest equal-aspect box.
+    halign : {"left", "center"}
+        Horizontal placement of the axes inside ``box`` (always top-aligned).
 
     Returns
     -------
@@ -222,9 +224,11 @@ def fit_axes_rect(fig, box, xlim, ylim, scale=None):
     if scale is None:
         s = min(width / dx, height / dy)  # inches per metre
     else:
-        s = 1.0 / (scale * 39.37007874)
+        s = 39.37007874 / scale
     w, h = dx * s, dy * s
     fw, fh = fig.get_size_inches()
+    if halign == "center":
+        left += max(0.0, (width - w) / 2)
     rect = (left / fw, (bottom + height - h) / fh, w / fw, h / fh)
     ax = fig.add_axes(rect)
     ax.set_xlim(*xlim)
@@ -233,12 +237,18 @@ def fit_axes_rect(fig, box, xlim, ylim, scale=None):
     return ax, 1.0 / (s * 0.0254)
 
 
+SCALE_STEPS = (1.0, 1.25, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0, 7.5)
+
+
 def standard_scale(min_denominator: float) -> float:
-    """The smallest scale 1:N with N in the 1-2-2.5-5 x 10^n series and N >= the given
-    value (so the map fits). 1:2500 and 1:25000 are the usual harbour-chart scales besides
-    the ISO 5455 1-2-5 series."""
+    """The smallest usual scale 1:N with N >= ``min_denominator`` (so the map fits).
+
+    N is one of 1, 1.25, 1.5, 2, 2.5, 3, 4, 5, 6, 7.5 x 10^n: the ISO 5455 series
+    (1, 2, 5) plus the intermediate scales of a metric scale rule (common practice),
+    so the printed map is never less than 80 % of the size that would fit.
+    """
     exp = math.floor(math.log10(min_denominator))
-    for m in (1.0, 2.0, 2.5, 5.0, 10.0):
+    for m in (*SCALE_STEPS, 10.0):
         n = m * 10 ** exp
         if n >= min_denominator * (1 - 1e-9):
             return n
@@ -265,6 +275,33 @@ def _polygon_patch(poly, **kw):
     return PathPatch(MplPath(np.concatenate(verts), np.concatenate(codes)), **kw)
 
 
+def true_north_vector(convergence_deg: float) -> np.ndarray:
+    """Unit vector (east, north components of the work frame) pointing to true north.
+
+    Parameters
+    ----------
+    convergence_deg : float
+        Meridian convergence gamma, degrees (grid bearing = true bearing - gamma).
+
+    Returns
+    -------
+    numpy.ndarray, shape (2,)
+        (sin b, cos b) with b = -gamma the grid bearing of true north.
+
+    Notes
+    -----
+    On an equal-aspect map the page's up direction is grid north, so this is also the
+    direction of the north arrow on the page.
+
+    References
+    ----------
+    Snyder, J. P. (1987). Map Projections - A Working Manual. U.S. Geological Survey
+    Professional Paper 1395.
+    """
+    b = math.radians(-float(convergence_deg))
+    return np.array([math.sin(b), math.cos(b)])
+
+
 def _north_arrow(fig, ax, convergence_deg: float, at=(0.935, 0.86)):
     """Draw a north arrow pointing to TRUE north near the axes' top-right corner.
 
@@ -274,8 +311,7 @@ def _north_arrow(fig, ax, convergence_deg: float, at=(0.935, 0.86)):
     whatever the data extent.
     """
     tr = fig.dpi_scale_trans + transforms.ScaledTranslation(at[0], at[1], ax.transAxes)
-    b = math.radians(-convergence_deg)  # grid bearing of true north, clockwise from up
-    u = np.array([math.sin(b), math.cos(b)])  # unit vector towards true north (page)
+    u = true_north_vector(convergence_deg)
     n = np.array([u[1], -u[0]])
     r = 0.32
     artists = [Circle((0, 0), r, transform=tr, facecolor="white", edgecolor=MUTED,
@@ -289,7 +325,8 @@ def _north_arrow(fig, ax, convergence_deg: float, at=(0.935, 0.86)):
         ax.add_artist(a)
         a.set_clip_on(False)
     ax.text(*((r + 0.1) * u), "N", transform=tr, ha="center", va="center",
-            fontsize=11, fontweight="bold", color=INK, zorder=22, clip_on=False)
+            fontsize=11, fontweight="bold", color=INK, zorder=22, clip_on=False,
+            path_effects=_HALO)
     ax.text(0.0, -r - 0.09, "true north" + (f"\nconvergence {convergence_deg:+.2f}\u00b0"
                                             if abs(convergence_deg) >= 0.005 else ""),
             transform=tr, ha="center", va="top", fontsize=6.5, color=INK, zorder=22,
@@ -298,33 +335,79 @@ def _north_arrow(fig, ax, convergence_deg: float, at=(0.935, 0.86)):
     return artists[0]
 
 
-def _scale_bar(ax):
-    """Draw a two-segment scale bar (round length, metres) at the lower-left corner."""
+def nice_below(v: float) -> float:
+    """The largest round number (1, 2 or 5 x 10^n) not above ``v`` (halves stay round)."""
+    exp = math.floor(math.log10(v))
+    for m in (5.0, 2.0, 1.0):
+        if m * 10 ** exp <= v * (1 + 1e-9):
+            return m * 10 ** exp
+    return 10.0 ** (exp - 1) * 5.0
+
+
+def _scale_bar(fig, ax):
+    """Draw a scale bar (round length, metres) in the lower-left corner of the map.
+
+    Sized on paper, not in data units: at most 1.6 in and 30 % of the map width, so the
+    labels never crowd on a small map; the middle label is dropped below 0.9 in.
+    """
+    fw, _ = fig.get_size_inches()
     x0, x1 = ax.get_xlim()
-    y0, y1 = ax.get_ylim()
-    w, h = x1 - x0, y1 - y0
-    length = nice_step(w, 5)
-    if length > 0.3 * w:
-        length = nice_step(w, 8)
-    bx, by = x0 + 0.035 * w, y0 + 0.055 * h
-    th = 0.012 * max(w, h)
-    pad = 0.015 * max(w, h)
-    bg = Rectangle((bx - pad, by - 2.4 * th - pad * 0.6), length + 2 * pad + 0.035 * w,
-                   3.6 * th + 1.6 * pad, facecolor="white", edgecolor=MUTED, linewidth=0.6,
-                   alpha=0.92, zorder=18)
-    ax.add_patch(bg)
-    half = length / 2
-    ax.add_patch(Rectangle((bx, by), half, th, facecolor=INK, edgecolor=INK, lw=0.6, zorder=19))
-    ax.add_patch(Rectangle((bx + half, by), half, th, facecolor="white", edgecolor=INK,
-                           lw=0.6, zorder=19))
-
-    def fmt(v):
-        return f"{v:g}"
-
-    for v, lab in ((0, "0"), (half, fmt(half)), (length, fmt(length) + " m")):
-        ax.text(bx + v, by - 0.4 * th, lab, ha="center", va="top", fontsize=7.5, color=INK,
-                zorder=19)
+    ax_w = ax.get_position().width * fw
+    m_per_in = (x1 - x0) / ax_w
+    length = nice_below(min(1.6, 0.3 * ax_w) * m_per_in)
+    bar = length / m_per_in
+    tr = fig.dpi_scale_trans + transforms.ScaledTranslation(0.0, 0.0, ax.transAxes)
+    ox, oy, th = 0.22, 0.28, 0.055
+    bg = Rectangle((ox - 0.12, oy - 0.2), bar + 0.24 + 0.18, th + 0.3, transform=tr,
+                   facecolor="white", edgecolor=MUTED, linewidth=0.6, alpha=0.92, zorder=18)
+    ax.add_artist(bg)
+    half = bar / 2
+    ax.add_artist(Rectangle((ox, oy), half, th, transform=tr, facecolor=INK, edgecolor=INK,
+                            lw=0.6, zorder=19))
+    ax.add_artist(Rectangle((ox + half, oy), half, th, transform=tr, facecolor="white",
+                            edgecolor=INK, lw=0.6, zorder=19))
+    labels = [(0.0, "0"), (bar, f"{length:g} m")]
+    if bar >= 0.9:
+        labels.insert(1, (half, f"{length / 2:g}"))
+    for v, lab in labels:
+        ax.text(ox + v, oy - 0.03, lab, transform=tr, ha="center", va="top", fontsize=7.5,
+                color=INK, zorder=19)
     return bg
+
+
+def arm_mask(x, y, scenario) -> np.ndarray:
+    """Grid nodes too close to an arm for contouring: True where a node is within
+    0.71 grid spacings of any arm.
+
+    Parameters
+    ----------
+    x, y : numpy.ndarray
+        1-D node coordinates (m).
+    scenario : Scenario or None
+        Supplies the arms; ``None`` masks nothing.
+
+    Returns
+    -------
+    numpy.ndarray of bool, shape (len(y), len(x))
+
+    Notes
+    -----
+    K' jumps across a thin arm, but contouring interpolates between the nodes on either
+    side, which would draw every level as a spurious line along the arm. Every grid cell
+    that an arm crosses has a corner within h / sqrt(2) of the arm (h the spacing), so
+    masking those nodes masks exactly the cells that straddle it; isolines then stop
+    about one cell short of the arm instead of running along it.
+    """
+    layout = getattr(scenario, "layout", None) if scenario is not None else None
+    arms = [np.asarray(a.line, float) for a in getattr(layout, "arms", ())]
+    X, Y = np.meshgrid(np.asarray(x, float), np.asarray(y, float))
+    if not arms:
+        return np.zeros(X.shape, bool)
+    h = max(float(np.max(np.abs(np.diff(x)))) if len(x) > 1 else 0.0,
+            float(np.max(np.abs(np.diff(y)))) if len(y) > 1 else 0.0)
+    geom = shapely.MultiLineString(arms)
+    shapely.prepare(geom)
+    return shapely.dwithin(geom, shapely.points(X, Y), h / math.sqrt(2.0) * 1.001)
 
 
 def _bleed(field: np.ndarray, cells: int = 2) -> np.ndarray:
@@ -348,7 +431,8 @@ def _bleed(field: np.ndarray, cells: int = 2) -> np.ndarray:
     return f
 
 
-def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fontsize=7.5):
+def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fontsize=7.5,
+             halign="left"):
     """Draw the sheltering map of one sea state into ``fig``.
 
     Parameters
@@ -368,6 +452,8 @@ def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fonts
         Print scale denominator (see :func:`fit_axes_rect`).
     label_fontsize : float
         Point-label size (pt).
+    halign : {"left", "center"}
+        Placement of the map in ``box``.
 
     Returns
     -------
@@ -384,7 +470,7 @@ def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fonts
     y = np.asarray(result["y"].values, float)
     xlim, ylim = (x.min(), x.max()), (y.min(), y.max())
 
-    ax, denom = fit_axes_rect(fig, box, xlim, ylim, scale)
+    ax, denom = fit_axes_rect(fig, box, xlim, ylim, scale, halign)
     ax.set_facecolor("#f2f2f2")
     fill, lines, open_top = fill_levels(field, show, info["height"])
     field = _bleed(field)
@@ -399,9 +485,18 @@ def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fonts
         return "white" if 0.2126 * r + 0.7152 * g + 0.0722 * b < 0.45 else "#111111"
 
     line_colours = [ink_for(v) for v in lines]
-    cs = ax.contour(x, y, field, levels=lines, colors=line_colours, linewidths=0.7, zorder=2)
-    fmt = (lambda v: f"{v:.1f}" if abs(v * 10 - round(v * 10)) < 1e-6 else f"{v:.2f}") \
-        if show == "kd" else (lambda v: f"{v:g} m")
+    line_field = np.where(arm_mask(x, y, scenario), np.nan, field)
+    cs = ax.contour(x, y, line_field, levels=lines, colors=line_colours, linewidths=0.7, zorder=2)
+    if show == "kd":
+        def fmt(v):
+            return f"{v:.1f}" if abs(v * 10 - round(v * 10)) < 1e-6 else f"{v:.2f}"
+    else:
+        step = float(fill[1] - fill[0]) if fill.size > 1 else 1.0
+        dec = max(0, -math.floor(math.log10(step) + 1e-9)) + (1 if round(step / 10 ** math.floor(
+            math.log10(step)), 6) == 2.5 else 0)
+
+        def fmt(v):
+            return f"{v:.{dec}f} m"
     labels = ax.clabel(cs, inline=True, fontsize=7, fmt=fmt, inline_spacing=3)
     for t in labels:
         t.set_zorder(3)
@@ -449,7 +544,7 @@ def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fonts
         lab.set_va("center")
 
     obstacles = [_north_arrow(fig, ax, float(result.attrs.get("convergence_deg", 0.0) or 0.0)),
-                 _scale_bar(ax)]
+                 _scale_bar(fig, ax)]
     point_handles = _draw_points(fig, ax, result, scenario, name, info, obstacles,
                                  label_fontsize)
     handles.extend(point_handles)
@@ -615,6 +710,12 @@ def warning_lines(result) -> list[str]:
             if w.strip()]
 
 
+def wrap_to(text: str, width_in: float, fontsize: float) -> list[str]:
+    """Wrap ``text`` to a width in inches (DejaVu Sans averages about 0.55 em a glyph)."""
+    chars = max(20, int(width_in * 72.0 / (fontsize * 0.55)))
+    return textwrap.wrap(text, chars) or [""]
+
+
 def new_figure(size=A4_LANDSCAPE) -> Figure:
     """A pyplot-free figure (Agg canvas) so that maps can be drawn from any thread."""
     fig = Figure(figsize=size)
@@ -665,36 +766,57 @@ def sheltering_map(result, scenario, sea, path, show="kd", dpi=170):
        with consideration for color vision deficiency. PLoS ONE 13(7), e0199239
        (the cividis colour map).
     """
-    fig = new_figure()
+    x = result["x"].values
+    y = result["y"].values
+    tall = float(y.max() - y.min()) > 1.15 * float(x.max() - x.min())
+    # A4 portrait for a layout taller than wide, so the map is not a thin strip.
+    fig = new_figure(A4_LANDSCAPE[::-1] if tall else A4_LANDSCAPE)
     fw, fh = fig.get_size_inches()
-    drawn = draw_map(fig, (0.75, 1.2, fw - 0.75 - 3.15, fh - 1.2 - 1.05), result, scenario,
-                     sea, show)
-    draw_colorbar(fig, drawn)
-    pos = drawn["ax"].get_position()
-    legend_x = pos.x1 * fw + 1.15
-    draw_legend(fig, drawn, (legend_x, pos.y1 * fh))
-
-    info = drawn["info"]
+    margin = 0.75
+    name = sea_name(result, sea)
+    info = sea_info(result, name)
     title, sea_line, method = title_lines(result, scenario, info)
-    fig.text(0.75 / fw, 1 - 0.28 / fh, title, fontsize=14, fontweight="bold", color=INK,
-             va="top")
-    fig.text(0.75 / fw, 1 - 0.58 / fh, sea_line, fontsize=10.5, color=INK, va="top")
-    fig.text(0.75 / fw, 1 - 0.80 / fh, method, fontsize=8.5, color=MUTED, va="top")
 
+    # Footer first (wrapped to the page), so the map takes what is left above it.
     warns = warning_lines(result)
     foot = []
     if warns:
         first = textwrap.shorten(warns[0], 150, placeholder="...")
         more = f" (+{len(warns) - 1} more)" if len(warns) > 1 else ""
-        foot.append(f"Validity warning: {first}{more}. Full list on the PDF sheet and in the NetCDF file.")
+        foot.append(f"Validity warning: {first}{more}. Full list on the PDF sheet and in "
+                    "the NetCDF file.")
     foot.append(CAUTION_SHORT)
+    foot_lines = [ln for item in foot for ln in wrap_to(item, fw - 2 * margin + 0.25, 7.5)]
     prov = (f"harbor {result.attrs.get('harbor_version', '')}  \u00b7  "
             f"{str(result.attrs.get('created', ''))[:19].replace('T', ' ')}  \u00b7  "
             f"scenario: {result.attrs.get('scenario', '') or getattr(scenario, 'path', '') or '(in code)'}")
-    fig.text(0.75 / fw, 0.38 / fh, "\n".join(foot), fontsize=7.5, color=INK, va="bottom",
-             wrap=False)
-    fig.text(0.75 / fw, 0.16 / fh, prov, fontsize=6.5, color=MUTED, va="bottom")
-    fig.add_artist(Line2D([0.75 / fw, 1 - 0.5 / fw], [0.72 / fh, 0.72 / fh], color="#bbbbbb",
+    line_h = 7.5 * 1.25 / 72.0
+    foot_top = 0.38 + len(foot_lines) * line_h
+    title_size = 14.0
+    while len(wrap_to(title, fw - 2 * margin, title_size)) > 1 and title_size > 10.5:
+        title_size -= 0.5
+    head_lines = [textwrap.shorten(title, len(wrap_to(title, fw - 2 * margin, title_size)[0]),
+                                   placeholder=" ..."), sea_line, method]
+
+    side = 3.15 if not tall else 2.9
+    drawn = draw_map(fig, (margin, foot_top + 0.75, fw - margin - side,
+                           fh - foot_top - 0.75 - 1.05), result, scenario, name, show)
+    draw_colorbar(fig, drawn)
+    pos = drawn["ax"].get_position()
+    draw_legend(fig, drawn, (pos.x1 * fw + 1.15, pos.y1 * fh),
+                fontsize=7.5 if not tall else 7.0)
+
+    fig.text(margin / fw, 1 - 0.28 / fh, head_lines[0], fontsize=title_size, fontweight="bold",
+             color=INK, va="top")
+    fig.text(margin / fw, 1 - 0.58 / fh, sea_line, fontsize=10.5 if not tall else 9.5,
+             color=INK, va="top")
+    fig.text(margin / fw, 1 - 0.80 / fh, method, fontsize=8.5 if not tall else 7.5,
+             color=MUTED, va="top")
+    fig.text(margin / fw, 0.38 / fh, "\n".join(foot_lines), fontsize=7.5, color=INK,
+             va="bottom", linespacing=1.25)
+    fig.text(margin / fw, 0.16 / fh, prov, fontsize=6.5, color=MUTED, va="bottom")
+    y_rule = (foot_top + 0.12) / fh
+    fig.add_artist(Line2D([margin / fw, 1 - 0.5 / fw], [y_rule, y_rule], color="#bbbbbb",
                           lw=0.6))
     with atomic_path(path) as tmp:
         fig.savefig(tmp, dpi=dpi, format="png", facecolor="white")

@@ -19,7 +19,7 @@ from harbor.cautions import CAUTIONS
 from harbor.outputs._atomic import atomic_path, slug
 from harbor.outputs.maps import (INK, MUTED, OVER_COLOUR, crs_label, draw_colorbar, draw_legend,
                                  draw_map, new_figure, sea_info, sea_label, sea_name,
-                                 standard_scale, title_lines, warning_lines)
+                                 standard_scale, title_lines, warning_lines, wrap_to)
 
 MM = 1.0 / 25.4  # inches per millimetre
 DOCUMENT_TYPE = "Preliminary sheltering map"
@@ -29,9 +29,7 @@ TB_WIDTH = 180 * MM  # the ISO 7200 maximum width
 
 
 def _wrap(text: str, width_in: float, fontsize: float) -> list[str]:
-    """Wrap to a width in inches (average glyph of DejaVu Sans about 0.55 em)."""
-    chars = max(20, int(width_in * 72.0 / (fontsize * 0.55)))
-    return textwrap.wrap(text, chars) or [""]
+    return wrap_to(text, width_in, fontsize)
 
 
 def _text_block(fig, x, y_top, width, max_height, heading, items, fontsize=6.8,
@@ -50,7 +48,8 @@ def _text_block(fig, x, y_top, width, max_height, heading, items, fontsize=6.8,
     for i, item in enumerate(items):
         wrapped = _wrap(item, width - 0.12, fontsize)
         block = [bullet + wrapped[0]] + ["   " + w for w in wrapped[1:]]
-        if (len(lines) + len(block) + 1) * line_h > max_height - (y_top - y):
+        reserve = 1 if i < len(items) - 1 else 0  # room for the "+n more" line
+        if (len(lines) + len(block) + reserve) * line_h > max_height - (y_top - y) + 1e-9:
             lines.append(f"(+{len(items) - i} more: see the NetCDF file's 'warnings' attribute)")
             break
         lines.extend(block)
@@ -58,6 +57,12 @@ def _text_block(fig, x, y_top, width, max_height, heading, items, fontsize=6.8,
         fig.text(x / fw, y / fh, "\n".join(lines), fontsize=fontsize, color=colour, va="top",
                  linespacing=1.3)
     return (y_top - y) + len(lines) * line_h
+
+
+def _block_height(items, width, fontsize) -> float:
+    """Height (inches) of a :func:`_text_block` holding all ``items``."""
+    n = sum(len(_wrap(it, width - 0.12, fontsize)) for it in items)
+    return (fontsize + 1.2) * 1.5 / 72.0 + n * fontsize * 1.3 / 72.0
 
 
 def _title_block(fig, x0, y0, result, scenario, info, scale, sheet_number, sheet_count,
@@ -181,9 +186,9 @@ def pdf_sheet(result, scenario, sea, path, sheet_number=1, sheet_count=1, show="
     min_n = max(dx / (map_box[2] * 0.0254), dy / (map_box[3] * 0.0254))
     scale = standard_scale(min_n)
     drawn = draw_map(fig, map_box, result, scenario, name, show=show, scale=scale,
-                     label_fontsize=6.5)
+                     label_fontsize=6.5, halign="center")
     draw_colorbar(fig, drawn)
-    fig.text(map_box[0] / fw, (top - 0.12) / fh, f"{drawn['label'].split(' [')[0]} \u2014 "
+    fig.text(drawn["ax"].get_position().x0, (top - 0.12) / fh, f"{drawn['label'].split(' [')[0]} \u2014 "
              f"sea state '{name}'", fontsize=10, fontweight="bold", color=INK, va="top")
 
     side_x = right - side_w - 0.1
@@ -194,12 +199,18 @@ def pdf_sheet(result, scenario, sea, path, sheet_number=1, sheet_count=1, show="
     if legend is not None:
         bb = legend.get_window_extent(renderer)
         y_notes = bb.y0 / fig.dpi - 0.2
-    warns = warning_lines(result)
+    warns = warning_lines(result) or ["None reported for this result."]
     room = y_notes - (bottom + tb_height + 0.15)
-    used = _text_block(fig, side_x, y_notes, side_w, room * 0.62, "Validity warnings",
-                       warns or ["None reported for this result."], colour=INK)
-    _text_block(fig, side_x, y_notes - used - 0.12, side_w, room - used - 0.12,
-                "Cautions", list(CAUTIONS))
+    # The cautions are printed in full whatever happens; the warnings get the rest.
+    caution_h = _block_height(list(CAUTIONS), side_w, 6.8)
+    size = 6.8
+    while caution_h > room - 0.6 and size > 5.0:
+        size -= 0.4
+        caution_h = _block_height(list(CAUTIONS), side_w, size)
+    used = _text_block(fig, side_x, y_notes, side_w, room - caution_h - 0.12,
+                       "Validity warnings", warns, fontsize=size)
+    _text_block(fig, side_x, y_notes - used - 0.12, side_w, caution_h + 0.05, "Cautions",
+                list(CAUTIONS), fontsize=size)
 
     _title_block(fig, right - TB_WIDTH, bottom, result, scenario, info, scale,
                  sheet_number, sheet_count, name)
