@@ -17,7 +17,6 @@ import csv
 import io
 import json
 import math
-import os
 from pathlib import Path
 
 import numpy as np
@@ -26,10 +25,10 @@ import pytest
 import shapely
 import xarray as xr
 
-from harbor.cautions import CAUTION_SHORT, CAUTIONS
+from harbor.cautions import CAUTIONS
 from harbor.geometry.layout import Arm, Land, Layout, Point
 from harbor.geometry.site import Site
-from harbor.outputs import export, maps, sheet
+from harbor.outputs import export, maps
 from harbor.outputs import diagram
 from harbor.study.scenario import GridSpec, Scenario, Sea
 
@@ -71,9 +70,13 @@ def synthetic_kd(X, Y, scenario):
     r = np.hypot(dx, dy)
     spread = np.exp(-(np.arctan2(dx, -dy) / 0.7) ** 2)
     k_in = np.exp(-r / 400.0) * (0.2 + 0.8 * spread)
-    d_arm = shapely.distance(shapely.MultiLineString(arms), shapely.points(X, Y))
+    pts = shapely.points(X, Y)
+    d_arm = shapely.distance(shapely.MultiLineString(arms), pts)
     k_out = 1.0 + 0.35 * np.exp(-d_arm / 50.0) * np.cos(d_arm / 25.0)
-    return np.where(inside, k_in, k_out)
+    # Continuous across the entrance (open water), discontinuous only across the arms.
+    d_gap = shapely.distance(shapely.LineString([arms[0][-1], arms[1][-1]]), pts)
+    k_basin = k_out + (k_in - k_out) * (1.0 - np.exp(-d_gap / 40.0))
+    return np.where(inside, k_basin, k_out)
 
 
 def make_result(scenario, spacing=20.0, with_points=True):
@@ -131,3 +134,346 @@ def make_result(scenario, spacing=20.0, with_points=True):
 def case():
     sc = make_scenario()
     return sc, make_result(sc)
+
+
+@pytest.fixture(scope="module")
+def run(case, tmp_path_factory):
+    """One complete write_all run shared by the file checks below."""
+    sc, res = case
+    out = tmp_path_factory.mktemp("run") / "out"
+    written = export.write_all(res, sc, out)
+    return sc, res, out, written
+
+
+# --------------------------------------------------------------------------- write_all
+
+def test_write_all_names_and_files(run):
+    sc, res, out, written = run
+    names = sorted(p.name for p in written)
+    assert names == sorted(["map-storm-sw.png", "sheet-storm-sw.pdf", "isolines-storm-sw.geojson",
+                            "map-swell-n.png", "sheet-swell-n.pdf", "isolines-swell-n.geojson",
+                            "grid.nc", "points.csv"])
+    assert sorted(p.name for p in out.iterdir()) == names
+    # No staging directory or temporary file left beside or inside the output.
+    assert [p.name for p in out.parent.iterdir()] == ["out"]
+    assert not [p for p in out.iterdir() if p.name.startswith(".")]
+
+
+def test_png_opens_at_a4_landscape(run):
+    import matplotlib.image as mpimg
+
+    *_, out, _ = run
+    img = mpimg.imread(out / "map-storm-sw.png")
+    h, w = img.shape[:2]
+    # A4 landscape is 297 x 210 mm (ISO 216): aspect 1.414; readable at >= 150 dpi.
+    assert w / h == pytest.approx(297 / 210, rel=0.01)
+    assert w >= 297 / 25.4 * 150
+
+
+def test_pdf_is_one_page(run):
+    *_, out, _ = run
+    data = (out / "sheet-storm-sw.pdf").read_bytes()
+    assert data.startswith(b"%PDF-") and data.rstrip().endswith(b"%%EOF")
+    # ISO 32000-1 section 7.7.3: one page object (/Type /Page, not /Pages).
+    import re
+
+    assert len(re.findall(rb"/Type\s*/Page(?![a-z])", data)) == 1
+
+
+# --------------------------------------------------------------------------- GeoJSON
+
+def test_geojson_rfc7946_lonlat_near_site(run):
+    sc, res, out, _ = run
+    doc = json.loads((out / "isolines-storm-sw.geojson").read_text())
+    assert doc["type"] == "FeatureCollection"
+    assert "crs" not in doc  # RFC 7946 section 4: no crs member, WGS 84 only
+    assert doc["features"]
+    to_work = pyproj.Transformer.from_crs(4326, 32630, always_xy=True)
+    for f in doc["features"]:
+        assert f["type"] == "Feature"
+        g = f["geometry"]
+        assert g["type"] in ("LineString", "MultiLineString")
+        parts = [g["coordinates"]] if g["type"] == "LineString" else g["coordinates"]
+        for part in parts:
+            a = np.asarray(part, float)
+            assert a.shape[1] == 2 and len(a) >= 2
+            lon, lat = a[:, 0], a[:, 1]
+            # lon first (RFC 7946 section 3.1.1), within 2 km of the invented site.
+            assert np.all(np.abs(lon - LON0) < 0.03) and np.all(np.abs(lat - LAT0) < 0.02)
+            # Independent check: back in UTM with pyproj, every vertex lies on the K'
+            # level of the smooth field that was sampled. Tolerance 0.08: linear
+            # interpolation over a 20 m grid of a field whose gradient reaches about
+            # 0.004 per metre. A spurious line along an arm (where K' jumps by ~1 across
+            # the structure) or a lat/lon swap would fail by far more.
+            x, y = to_work.transform(lon, lat)
+            k = synthetic_kd(np.asarray(x), np.asarray(y), sc)
+            assert np.max(np.abs(k - f["properties"]["level"])) < 0.08
+        p = f["properties"]
+        assert p["quantity"] == "kd" and p["sea"] == "storm SW"
+
+
+def test_geojson_levels_present(run):
+    *_, out, _ = run
+    doc = json.loads((out / "isolines-storm-sw.geojson").read_text())
+    levels = sorted(f["properties"]["level"] for f in doc["features"])
+    # The synthetic field spans about 0.12 ... 1.35 on water, so 0.2 ... 1.0 all occur.
+    assert levels == pytest.approx([0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 1.0])
+    assert doc["harbor"]["levels_requested"] == pytest.approx(
+        [0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 1.0])
+    assert doc["harbor"]["cautions"] == list(CAUTIONS)
+    assert len(doc["harbor"]["warnings"]) == 2
+
+
+# --------------------------------------------------------------------------- NetCDF
+
+def test_netcdf_cf_attributes(run):
+    sc, res, out, _ = run
+    with xr.open_dataset(out / "grid.nc") as ds:
+        assert ds.attrs["Conventions"] == "CF-1.8"
+        # CF-1.8 section 4 / 5.6: projection coordinates and the grid mapping.
+        assert ds["x"].attrs["standard_name"] == "projection_x_coordinate"
+        assert ds["y"].attrs["standard_name"] == "projection_y_coordinate"
+        assert ds["x"].attrs["units"] == "m" and ds["y"].attrs["units"] == "m"
+        for v, units in (("kd", "1"), ("height", "m"), ("period_ratio", "1")):
+            assert ds[v].attrs["units"] == units
+            assert ds[v].attrs["long_name"]
+            assert ds[v].attrs["grid_mapping"] == "crs"
+        gm = ds["crs"].attrs
+        assert gm["grid_mapping_name"] == "transverse_mercator"
+        assert pyproj.CRS.from_wkt(gm["crs_wkt"]).to_epsg() == 32630
+        # UTM 30N: central meridian 3 W, scale 0.9996, false easting 500 km (EPSG:32630).
+        assert gm["longitude_of_central_meridian"] == pytest.approx(-3.0)
+        assert gm["scale_factor_at_central_meridian"] == pytest.approx(0.9996)
+        assert gm["false_easting"] == pytest.approx(500000.0)
+        for key in ("title", "source", "history", "date_created", "scenario", "method",
+                    "warnings", "cautions", "institution"):
+            assert ds.attrs[key], key
+        assert "harbor 0.1.0" in ds.attrs["source"]
+        assert CAUTIONS[0] in ds.attrs["cautions"]
+        assert ds.attrs["scenario"] == "fictional-harbour.toml"
+        # The auxiliary lon/lat agree with pyproj's own inverse at a corner.
+        lon, lat = pyproj.Transformer.from_crs(32630, 4326, always_xy=True).transform(
+            float(ds["x"][0]), float(ds["y"][-1]))
+        assert float(ds["lon"][-1, 0]) == pytest.approx(lon, abs=1e-9)
+        assert float(ds["lat"][-1, 0]) == pytest.approx(lat, abs=1e-9)
+        assert ds["lon"].attrs["units"] == "degrees_east"
+        # Values survive the round trip (NaN on land stays missing).
+        np.testing.assert_array_equal(ds["kd"].values, res["kd"].values)
+        assert list(ds["sea"].values) == ["storm SW", "swell N"]
+
+
+def test_netcdf_raw_reader_sees_grid_mapping(run):
+    import netCDF4
+
+    *_, out, _ = run
+    with netCDF4.Dataset(out / "grid.nc") as nc:
+        assert nc.variables["kd"].grid_mapping == "crs"
+        assert "crs_wkt" in nc.variables["crs"].ncattrs()
+        assert nc.getncattr("Conventions") == "CF-1.8"
+
+
+def test_netcdf_without_points(case, tmp_path):
+    sc, _ = case
+    res = make_result(sc, spacing=50.0, with_points=False)
+    p = export.write_netcdf(res, tmp_path / "g.nc")
+    with xr.open_dataset(p) as ds:
+        assert "point" not in ds.dims
+        assert ds["kd"].shape == res["kd"].shape
+
+
+# --------------------------------------------------------------------------- CSV, table
+
+def test_points_csv(run):
+    sc, res, out, _ = run
+    text = (out / "points.csv").read_text()
+    assert text.splitlines()[0] == "sea,point,x,y,kd,height,period_ratio,limit,ok"
+    rows = list(csv.DictReader(io.StringIO(text)))
+    assert len(rows) == len(sc.seas) * len(sc.points)
+    limits = {p.name: p.limit for p in sc.points}
+    for r in rows:
+        h = float(r["height"])
+        lim = limits[r["point"]]
+        if lim is None:
+            assert r["limit"] == "" and r["ok"] == ""
+        else:
+            assert float(r["limit"]) == pytest.approx(lim)
+            assert r["ok"] == ("true" if h <= lim else "false")
+        kind = sc.sea(r["sea"]).kind
+        assert (r["period_ratio"] == "") == (kind == "regular")
+        at = next(p.at for p in sc.points if p.name == r["point"])
+        assert float(r["x"]) == pytest.approx(at[0]) and float(r["y"]) == pytest.approx(at[1])
+    # pandas reads it as a plain table with the same columns.
+    import pandas as pd
+
+    df = pd.read_csv(out / "points.csv")
+    assert list(df.columns) == list(export.CSV_COLUMNS)
+
+
+def test_point_table_lists_points_and_cautions(case):
+    sc, res = case
+    t = export.point_table(res)
+    for p in sc.points:
+        assert p.name in t
+    assert "OVER" in t and "ok" in t
+    for c in CAUTIONS:
+        assert c in t
+    # The over-limit verdict for the fish quay (0.61 m > 0.30 m) appears on its line.
+    line = next(l for l in t.splitlines() if l.startswith("fish quay"))
+    assert "0.30" in line and "OVER" in line
+
+
+# --------------------------------------------------------------------------- whole or nothing
+
+def _cheap(path, *a, **k):
+    Path(path).write_bytes(b"x")
+    return Path(path)
+
+
+def test_failed_run_leaves_nothing(case, tmp_path, monkeypatch):
+    sc, res = case
+    out = tmp_path / "out"
+    # Cheap stand-ins for the plots, then a failure after every per-sea file is staged.
+    monkeypatch.setattr("harbor.outputs.maps.sheltering_map",
+                        lambda r, s, sea, p, show="kd": _cheap(p))
+    monkeypatch.setattr("harbor.outputs.sheet.pdf_sheet", lambda r, s, sea, p, *a, **k: _cheap(p))
+
+    def boom(result, path):
+        Path(path).write_bytes(b"half a NetCDF")
+        raise RuntimeError("disk full")
+
+    monkeypatch.setattr(export, "write_netcdf", boom)
+    with pytest.raises(RuntimeError, match="disk full"):
+        export.write_all(res, sc, out)
+    assert not out.exists()
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_failed_run_keeps_previous_outputs(case, tmp_path, monkeypatch):
+    sc, res = case
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / "points.csv").write_text("previous,complete,file\n")
+
+    def boom(*a, **k):
+        raise RuntimeError("plotting failed")
+
+    monkeypatch.setattr("harbor.outputs.sheet.pdf_sheet", boom)
+    with pytest.raises(RuntimeError):
+        export.write_all(res, sc, out)
+    assert sorted(p.name for p in out.iterdir()) == ["points.csv"]
+    assert (out / "points.csv").read_text() == "previous,complete,file\n"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["out"]
+
+
+def test_single_writer_is_atomic(case, tmp_path, monkeypatch):
+    sc, res = case
+    target = tmp_path / "g.nc"
+    target.write_bytes(b"old complete file")
+
+    def broken(self, path, *a, **k):
+        Path(path).write_bytes(b"partial")
+        raise OSError("interrupted")
+
+    monkeypatch.setattr(xr.Dataset, "to_netcdf", broken)
+    with pytest.raises(OSError):
+        export.write_netcdf(res, target)
+    assert target.read_bytes() == b"old complete file"
+    assert [p.name for p in tmp_path.iterdir()] == ["g.nc"]
+
+
+# --------------------------------------------------------------------------- map details
+
+def test_slugs():
+    from harbor.outputs._atomic import slug, unique_slugs
+
+    assert slug("storm SW") == "storm-sw"
+    assert slug("Tempête  Nord/Ouest") == "tempete-nord-ouest"
+    assert slug("***") == "sea"
+    assert unique_slugs(["Storm SW", "storm-sw", "x"]) == ["storm-sw", "storm-sw-2", "x"]
+
+
+def test_north_arrow_points_to_true_north_by_pyproj(case):
+    """The arrow's direction agrees with where pyproj puts a point 1 km due north."""
+    sc, _ = case
+    to_utm = pyproj.Transformer.from_crs(4326, 32630, always_xy=True)
+    for lon, lat in ((-4.5, 44.5), (-1.2, 60.0), (-5.9, 10.0)):
+        x0, y0 = to_utm.transform(lon, lat)
+        x1, y1 = to_utm.transform(lon, lat + 0.009)  # about 1 km north
+        d = np.array([x1 - x0, y1 - y0]) / math.hypot(x1 - x0, y1 - y0)
+        site = Site("EPSG:32630", (x0, y0), depth=8.0)
+        u = maps.true_north_vector(site.convergence_deg)
+        assert np.degrees(np.arccos(np.clip(u @ d, -1, 1))) < 0.01
+    # West of the central meridian in the north, true north leans east of grid north.
+    assert maps.true_north_vector(sc.site.convergence_deg)[0] > 0
+
+
+def test_standard_scales():
+    # ISO 5455 reduction scales (1-2-5 series) and the intermediate scales of a metric
+    # scale rule, 1:1250, 1:1500, 1:2500, 1:3000, 1:4000, 1:6000, 1:7500 (common practice).
+    assert maps.standard_scale(9300) == 10000
+    assert maps.standard_scale(1800) == 2000
+    assert maps.standard_scale(2100) == 2500
+    assert maps.standard_scale(2600) == 3000
+    assert maps.standard_scale(1000) == 1000
+    assert maps.standard_scale(1001) == 1250
+    assert maps.standard_scale(6100) == 7500
+    assert maps.standard_scale(12200) == 12500
+
+
+def test_map_without_scenario_and_height(case, tmp_path):
+    sc, _ = case
+    res = make_result(sc, spacing=50.0)
+    p = maps.sheltering_map(res, None, "swell N", tmp_path / "m.png", show="height", dpi=60)
+    assert p.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+def test_unknown_sea_is_an_input_error(case, tmp_path):
+    from harbor.errors import InputError
+
+    sc, res = case
+    with pytest.raises(InputError, match="no sea state 'calm'"):
+        maps.sheltering_map(res, sc, "calm", tmp_path / "m.png")
+    assert list(tmp_path.iterdir()) == []
+
+
+# --------------------------------------------------------------------------- diagrams
+
+def _diagram_ds(case_name="gap", alpha=70.0, width=2.0, n=121):
+    """A plane wave (exact phase 2 pi (x cos a + y sin a)) with a smooth K' ramp."""
+    x = np.linspace(-3, 3, n)
+    y = np.linspace(-1.5, 4, n)
+    X, Y = np.meshgrid(x, y)
+    a = math.radians(alpha)
+    phase = np.angle(np.exp(2j * np.pi * (X * math.cos(a) + Y * math.sin(a))))
+    kd = np.where(Y > 0, np.exp(-(X / (1 + 0.5 * Y)) ** 2), 1.0)
+    return xr.Dataset({"kd": (("y_over_l", "x_over_l"), kd),
+                       "phase": (("y_over_l", "x_over_l"), phase)},
+                      coords={"x_over_l": x, "y_over_l": y},
+                      attrs={"case": case_name, "direction_deg": alpha, "width_over_l": width,
+                             "sea_kind": "regular", "method": "test field"})
+
+
+def test_crest_lines_of_a_plane_wave():
+    """Crests of exp(i k (x cos a + y sin a)) are the lines x cos a + y sin a = n L."""
+    import contourpy
+
+    ds = _diagram_ds()
+    z = diagram.crest_field(ds["phase"].values)
+    x, y = ds["x_over_l"].values, ds["y_over_l"].values
+    lines = contourpy.contour_generator(x, y, z).lines(0.0)
+    assert lines
+    a = math.radians(70.0)
+    s = np.concatenate([l[:, 0] * math.cos(a) + l[:, 1] * math.sin(a) for l in lines])
+    # Distance to the nearest whole wavelength: crests only, no troughs (which sit at
+    # half wavelengths); tolerance: linear interpolation over a 0.05 L grid.
+    assert np.max(np.abs(s - np.round(s))) < 0.01
+    # Every crest in the window is found.
+    assert set(np.round(s).astype(int)) == set(range(-2, 5))
+
+
+@pytest.mark.parametrize("case_name,suffix", [("gap", ".png"), ("semi-infinite", ".pdf")])
+def test_diagram_files(tmp_path, case_name, suffix):
+    p = diagram.plot_diagram(_diagram_ds(case_name), tmp_path / f"d{suffix}")
+    head = p.read_bytes()[:8]
+    assert head == b"\x89PNG\r\n\x1a\n" if suffix == ".png" else head.startswith(b"%PDF-")
+    assert [q.name for q in tmp_path.iterdir()] == [p.name]

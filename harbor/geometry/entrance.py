@@ -99,3 +99,42 @@ def nearest_heads(layout):
                     collinear=mis <= COLLINEAR_TOLERANCE_DEG,
                     end_lengths=(hi[2], hj[2]), rooted_far_ends=(hi[3], hj[3]),
                     misalignment_deg=mis)
+
+
+def basin_mask(layout, entrance, px, py, segments=None):
+    """True for points inside the basin behind a classic entrance.
+
+    A point is in the basin when it lies on the basin side of the entrance line and the
+    straight path from it to the middle of the entrance crosses no arm or land. When the
+    basin side is undecided (straight arms, ``basin_normal`` zero) the lee side is taken
+    as either side.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+    entrance : Entrance
+    px, py : numpy.ndarray
+        Points (m).
+    segments : tuple, optional
+        Output of :func:`harbor.geometry.visibility.layout_segments`.
+
+    Returns
+    -------
+    numpy.ndarray of bool
+    """
+    from harbor.geometry.visibility import layout_segments, segment_blocked
+
+    if segments is None:
+        segments = layout_segments(layout)
+    px = np.asarray(px, float)
+    py = np.asarray(py, float)
+    c = entrance.center
+    side = (px - c[0]) * entrance.basin_normal[0] + (py - c[1]) * entrance.basin_normal[1]
+    if np.allclose(entrance.basin_normal, 0):
+        behind = np.ones(px.shape, bool)
+    else:
+        behind = side > 0
+    out = np.zeros(px.shape, bool)
+    if np.any(behind):
+        out[behind] = ~segment_blocked(px[behind], py[behind], c[0], c[1], segments[0])
+    return out

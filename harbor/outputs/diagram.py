@@ -167,7 +167,13 @@ def plot_diagram(ds, path):
     # standing pattern (K' from 0 to 2 every half wavelength) whose 0.1-step isolines
     # would bury the diagram; the colour fill still shows it.
     lines = np.round(np.arange(0.1, 1.0001, 0.1), 10)
-    kd_lee = np.where(y[:, None] >= 0.0, kd, np.nan)
+    # Nodes on the barrier itself carry the jump from the front to the lee; leaving
+    # them out keeps isolines (and their labels) from running along the barrier.
+    on_barrier = np.zeros(kd.shape, bool)
+    row0 = np.isclose(y, 0.0, atol=1e-9 * max(1.0, float(np.ptp(y))))
+    for a, b in segs:
+        on_barrier |= row0[:, None] & ((x >= a) & (x <= b))[None, :]
+    kd_lee = np.where((y[:, None] >= 0.0) & ~on_barrier, kd, np.nan)
     cs = ax.contour(x, y, kd_lee, levels=lines, colors=INK, linewidths=0.75, zorder=3)
     labels = ax.clabel(cs, inline=True, fontsize=7.5, fmt=lambda v: f"{v:.1f}",
                        inline_spacing=3)

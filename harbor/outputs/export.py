@@ -21,7 +21,7 @@ from harbor.cautions import CAUTION_SHORT, CAUTIONS
 from harbor.outputs._atomic import atomic_path, staging_dir, unique_slugs, write_text_atomic
 from harbor.outputs.maps import arm_mask, point_rows, sea_info, sea_name, warning_lines
 
-DEFAULT_LEVELS = tuple(np.round(np.arange(0.1, 1.0001, 0.1), 10))
+DEFAULT_LEVELS = tuple(float(v) for v in np.round(np.arange(0.1, 1.0001, 0.1), 10))
 CSV_COLUMNS = ("sea", "point", "x", "y", "kd", "height", "period_ratio", "limit", "ok")
 
 

@@ -302,7 +302,7 @@ def true_north_vector(convergence_deg: float) -> np.ndarray:
     return np.array([math.sin(b), math.cos(b)])
 
 
-def _north_arrow(fig, ax, convergence_deg: float, at=(0.935, 0.86)):
+def _north_arrow(fig, ax, convergence_deg: float, inset=(0.6, 0.62)):
     """Draw a north arrow pointing to TRUE north near the axes' top-right corner.
 
     True north lies at grid bearing ``-convergence_deg`` (grid bearing = true bearing -
@@ -310,7 +310,11 @@ def _north_arrow(fig, ax, convergence_deg: float, at=(0.935, 0.86)):
     direction by the convergence. Drawn in inches so that it stays a clean shape
     whatever the data extent.
     """
-    tr = fig.dpi_scale_trans + transforms.ScaledTranslation(at[0], at[1], ax.transAxes)
+    # Centred a fixed distance (inches) in from the top-right corner, so that the arrow
+    # and its label stay inside the frame whatever the map's printed size.
+    tr = (fig.dpi_scale_trans + transforms.ScaledTranslation(-inset[0], -inset[1],
+                                                             fig.dpi_scale_trans)
+          + transforms.ScaledTranslation(1.0, 1.0, ax.transAxes))
     u = true_north_vector(convergence_deg)
     n = np.array([u[1], -u[0]])
     r = 0.32
@@ -410,6 +414,76 @@ def arm_mask(x, y, scenario) -> np.ndarray:
     return shapely.dwithin(geom, shapely.points(X, Y), h / math.sqrt(2.0) * 1.001)
 
 
+def _cell(x, y) -> float:
+    """Largest grid spacing (m)."""
+    d = [float(np.max(np.abs(np.diff(v)))) for v in (x, y) if len(v) > 1]
+    return max(d) if d else 0.0
+
+
+def busy_mask(field, x, y, wavelength, threshold) -> np.ndarray:
+    """Nodes in a standing-wave zone: where the field ranges over more than
+    ``threshold`` within half a wavelength.
+
+    Parameters
+    ----------
+    field : numpy.ndarray (ny, nx)
+        K' or height; NaN on land.
+    x, y : numpy.ndarray
+        Node coordinates (m).
+    wavelength : float
+        L (m) of the sea state, read from the result; NaN disables the mask.
+    threshold : float
+        Range (same units as ``field``) above which isolines are left out.
+
+    Returns
+    -------
+    numpy.ndarray of bool
+
+    Notes
+    -----
+    In front of a reflecting arm a regular sea forms standing waves: K' swings from 0 to
+    2 every half wavelength, and isolines at 0.1 steps there become a dense hatching
+    that hides the map. Where max - min over a window of L/2 exceeds ``threshold`` the
+    isolines are left out and the colours alone show the pattern (cartographic
+    generalisation: no value is changed, exports keep every isoline).
+    """
+    f = np.asarray(field, float)
+    h = _cell(x, y)
+    if not (np.isfinite(wavelength) and wavelength > 0 and h > 0) or f.size == 0:
+        return np.zeros(f.shape, bool)
+    from scipy import ndimage
+
+    n = max(3, int(round(0.5 * wavelength / h)) | 1)
+    hi = ndimage.maximum_filter(np.where(np.isnan(f), -np.inf, f), size=n, mode="nearest")
+    lo = ndimage.minimum_filter(np.where(np.isnan(f), np.inf, f), size=n, mode="nearest")
+    return np.isfinite(hi - lo) & (hi - lo > threshold)
+
+
+def _drop_specks(cs, min_size: float):
+    """Remove contour pieces smaller than ``min_size`` (m) across: closed specks where
+    a noisy field just touches a level (K' = 1.0 in open water) carry no information."""
+    from matplotlib.path import Path as _P
+
+    new = []
+    for path in cs.get_paths():
+        if path.codes is None or len(path.vertices) == 0:
+            new.append(path)
+            continue
+        starts = np.flatnonzero(path.codes == _P.MOVETO)
+        ends = np.append(starts[1:], len(path.vertices))
+        keep_v, keep_c = [], []
+        for a, b in zip(starts, ends):
+            v = path.vertices[a:b]
+            if np.hypot(*(v.max(axis=0) - v.min(axis=0))) >= min_size:
+                keep_v.append(v)
+                keep_c.append(path.codes[a:b])
+        if keep_v:
+            new.append(_P(np.concatenate(keep_v), np.concatenate(keep_c)))
+        else:
+            new.append(_P(np.zeros((0, 2))))
+    cs.set_paths(new)
+
+
 def _bleed(field: np.ndarray, cells: int = 2) -> np.ndarray:
     """Extend valid values into NaN cells by up to ``cells`` cells, for display only.
 
@@ -485,8 +559,11 @@ def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fonts
         return "white" if 0.2126 * r + 0.7152 * g + 0.0722 * b < 0.45 else "#111111"
 
     line_colours = [ink_for(v) for v in lines]
-    line_field = np.where(arm_mask(x, y, scenario), np.nan, field)
+    scale_h = 1.0 if show == "kd" else (info["height"] if np.isfinite(info["height"]) else 1.0)
+    busy = busy_mask(field, x, y, info["wavelength"], 0.6 * scale_h)
+    line_field = np.where(arm_mask(x, y, scenario) | busy, np.nan, field)
     cs = ax.contour(x, y, line_field, levels=lines, colors=line_colours, linewidths=0.7, zorder=2)
+    _drop_specks(cs, 2.5 * _cell(x, y))
     if show == "kd":
         def fmt(v):
             return f"{v:.1f}" if abs(v * 10 - round(v * 10)) < 1e-6 else f"{v:.2f}"
@@ -600,6 +677,16 @@ def _draw_points(fig, ax, result, scenario, name, info, obstacles, fontsize):
     ax_box = ax.get_window_extent(renderer)
     placed = [o.get_window_extent(renderer) for o in obstacles]
     placed += [m.get_window_extent(renderer).expanded(1.1, 1.1) for m in markers]
+    # Labels should not hide the structures: sample the arms every few points as small
+    # obstacles (weighted as much as another label).
+    layout = getattr(scenario, "layout", None) if scenario is not None else None
+    for arm in getattr(layout, "arms", ()):
+        xy = ax.transData.transform(np.asarray(arm.line, float))
+        for p0, p1 in zip(xy[:-1], xy[1:]):
+            n = max(2, int(np.hypot(*(p1 - p0)) / 6.0))
+            for t in np.linspace(0.0, 1.0, n):
+                cx, cy = p0 + t * (p1 - p0)
+                placed.append(transforms.Bbox([[cx - 4, cy - 4], [cx + 4, cy + 4]]))
     candidates = [(9, 7, "left", "bottom"), (9, -7, "left", "top"), (-9, 7, "right", "bottom"),
                   (-9, -7, "right", "top"), (0, 11, "center", "bottom"),
                   (0, -11, "center", "top"), (14, 0, "left", "center"), (-14, 0, "right", "center")]
@@ -782,9 +869,11 @@ def sheltering_map(result, scenario, sea, path, show="kd", dpi=170):
     foot = []
     if warns:
         first = textwrap.shorten(warns[0], 150, placeholder="...")
-        more = f" (+{len(warns) - 1} more)" if len(warns) > 1 else ""
-        foot.append(f"Validity warning: {first}{more}. Full list on the PDF sheet and in "
-                    "the NetCDF file.")
+        if len(warns) > 1 or first != warns[0]:
+            foot.append(f"Validity warning: {first} (+{len(warns) - 1} more: full list on the "
+                        "PDF sheet and in the NetCDF file).")
+        else:
+            foot.append(f"Validity warning: {first}.")
     foot.append(CAUTION_SHORT)
     foot_lines = [ln for item in foot for ln in wrap_to(item, fw - 2 * margin + 0.25, 7.5)]
     prov = (f"harbor {result.attrs.get('harbor_version', '')}  \u00b7  "
@@ -798,9 +887,12 @@ def sheltering_map(result, scenario, sea, path, show="kd", dpi=170):
     head_lines = [textwrap.shorten(title, len(wrap_to(title, fw - 2 * margin, title_size)[0]),
                                    placeholder=" ..."), sea_line, method]
 
+    method_size = 8.5 if not tall else 7.5
+    method_lines = wrap_to(method, fw - 2 * margin + 0.2, method_size)[:2]
+    head_h = 0.80 + len(method_lines) * method_size * 1.25 / 72.0 + 0.1
     side = 3.15 if not tall else 2.9
     drawn = draw_map(fig, (margin, foot_top + 0.75, fw - margin - side,
-                           fh - foot_top - 0.75 - 1.05), result, scenario, name, show)
+                           fh - foot_top - 0.75 - head_h), result, scenario, name, show)
     draw_colorbar(fig, drawn)
     pos = drawn["ax"].get_position()
     draw_legend(fig, drawn, (pos.x1 * fw + 1.15, pos.y1 * fh),
@@ -810,8 +902,8 @@ def sheltering_map(result, scenario, sea, path, show="kd", dpi=170):
              color=INK, va="top")
     fig.text(margin / fw, 1 - 0.58 / fh, sea_line, fontsize=10.5 if not tall else 9.5,
              color=INK, va="top")
-    fig.text(margin / fw, 1 - 0.80 / fh, method, fontsize=8.5 if not tall else 7.5,
-             color=MUTED, va="top")
+    fig.text(margin / fw, 1 - 0.80 / fh, "\n".join(method_lines), fontsize=method_size,
+             color=MUTED, va="top", linespacing=1.25)
     fig.text(margin / fw, 0.38 / fh, "\n".join(foot_lines), fontsize=7.5, color=INK,
              va="bottom", linespacing=1.25)
     fig.text(margin / fw, 0.16 / fh, prov, fontsize=6.5, color=MUTED, va="bottom")

@@ -12,7 +12,6 @@ from __future__ import annotations
 import textwrap
 from pathlib import Path
 
-from matplotlib.lines import Line2D
 from matplotlib.patches import Rectangle
 
 from harbor.cautions import CAUTIONS
@@ -221,6 +220,7 @@ def pdf_sheet(result, scenario, sea, path, sheet_number=1, sheet_count=1, show="
             f"Work CRS: {crs_label(result)}; meridian convergence "
             f"{float(result.attrs.get('convergence_deg', 0.0) or 0.0):+.3f}\u00b0 "
             "(north arrow shows true north)",
+            f"Method: {info['method'] or result.attrs.get('method', '')}",
             "Values are read from the computed result; distances can be measured at the "
             "printed scale."]
     _text_block(fig, left + 0.1, bottom + tb_height - 0.05, prov_w, tb_height - 0.1,

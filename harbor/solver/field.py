@@ -302,6 +302,16 @@ def solve_field(barriers, wavelength, direction, region, points_per_wavelength=1
         def wall(v, w):
             sx, xt = stretch(w.x[0], px0, px1)
             sy, yt = stretch(w.x[1], py0, py1)
+            import os
+            mode = os.environ.get("PMLSRC", "cont")
+            if mode == "real":
+                xt, yt = w.x[0], w.x[1]
+            elif mode == "cap":
+                # keep the continuation only where it decays
+                xt = np.where(d[0] * xt.imag >= 0, xt, xt.real)
+                yt = np.where(d[1] * yt.imag >= 0, yt, yt.real)
+            elif mode == "real1":
+                xt, yt = w.x[0], w.x[1]; sx = sy = 1.0
             _, ux, uy = _incident(xt, yt, k, d)
             # n is the outward normal of the water, i.e. into the barrier face.
             return -(sy * w.n[0] * ux + sx * w.n[1] * uy) * v
@@ -310,9 +320,18 @@ def solve_field(barriers, wavelength, direction, region, points_per_wavelength=1
 
     D = basis.get_dofs(bfac[outer]).all()
     Ac, bc, _, I = condense(A, b, D=D)
-    lu = splu(Ac.tocsc(), permc_spec="MMD_AT_PLUS_A")
+    Ac = Ac.tocsc()
+    # The matrix is complex symmetric with a structurally symmetric pattern: a symmetric
+    # minimum-degree ordering with diagonal pivots preferred fills in about half as much
+    # as the default column ordering and is an order of magnitude faster; keep partial
+    # pivoting as the fallback if the residual says the diagonal pivots were poor.
+    lu = splu(Ac, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.01,
+              options={"SymmetricMode": True})
+    x = lu.solve(bc)
+    if np.linalg.norm(Ac @ x - bc) > 1e-8 * max(np.linalg.norm(bc), 1e-300):
+        x = splu(Ac, permc_spec="COLAMD").solve(bc)
     us = np.zeros(ndof, complex)
-    us[I] = lu.solve(bc)
+    us[I] = x
 
     return FieldSolution(wavelength=L, direction=direction, region=region, box=box,
                          n_unknowns=int(len(I)), n_triangles=int(mesh.t.shape[1]),

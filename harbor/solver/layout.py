@@ -22,7 +22,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from harbor.geometry.entrance import nearest_heads
+from harbor.geometry.entrance import basin_mask, nearest_heads
 from harbor.geometry.visibility import layout_segments, ray_blocked, segment_blocked
 from harbor.solver.kernels.gap import AUTO_EXACT_BELOW, auto_method, gap
 from harbor.solver.kernels.sommerfeld import sommerfeld_terms
@@ -253,9 +253,9 @@ def layout_field(layout, px, py, wavelength, alpha, method="auto"):
     alpha : float
         Direction of travel (rad, math angle, work frame).
     method : {"auto", "general", "superposition", "exact"}
-        ``"auto"``: the classic entrance uses :func:`harbor.gap` (exact or superposition
-        by :func:`harbor.solver.kernels.gap.auto_method`), anything else the general
-        method. ``"general"`` forces the general method; ``"superposition"``/``"exact"``
+        ``"auto"``: inside the basin of a classic entrance :func:`harbor.gap` (exact or
+        superposition by :func:`harbor.solver.kernels.gap.auto_method`); everywhere else
+        (outside the basin, other layouts) the general method. ``"general"`` forces the general method; ``"superposition"``/``"exact"``
         force that gap method where a classic entrance exists.
 
     Returns
@@ -263,15 +263,20 @@ def layout_field(layout, px, py, wavelength, alpha, method="auto"):
     u : numpy.ndarray of complex
     info : FieldInfo
     """
-    px = np.asarray(px, float)
-    py = np.asarray(py, float)
+    px, py = np.broadcast_arrays(np.asarray(px, float), np.asarray(py, float))
     if method != "general":
         ent = classic_entrance(layout, wavelength)
         if ent is not None:
-            got = gap_field(ent, px, py, wavelength, alpha,
+            segments = layout_segments(layout)
+            inside = basin_mask(layout, ent, px, py, segments)
+            got = gap_field(ent, px[inside], py[inside], wavelength, alpha,
                             method="auto" if method == "auto" else method)
             if got is not None:
-                u, used = got
+                u = np.empty(px.shape, complex)
+                u[inside], used = got
+                if np.any(~inside):
+                    u[~inside], _ = general_field(layout, px[~inside], py[~inside], wavelength,
+                                                  alpha, segments=segments)
                 name = METHOD_GAP_EXACT if used == "exact" else METHOD_GAP_SUPERPOSITION
                 return u, FieldInfo(method=name, lit_heads=2)
     u, n_lit = general_field(layout, px, py, wavelength, alpha)

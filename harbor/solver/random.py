@@ -21,6 +21,7 @@ from harbor.solver.layout import (
     classic_entrance,
     general_field,
 )
+from harbor.geometry.entrance import basin_mask
 from harbor.geometry.visibility import layout_segments
 from harbor.waves.dispersion import wavelength as _wavelength
 
@@ -111,7 +112,10 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
         w = weight[sel]
         ent = classic_entrance(layout, L) if method != "general" else None
         batched = np.zeros(sel.size, bool)
+        inside = None
         if ent is not None:
+            inside = basin_mask(layout, ent, xf, yf, segments)
+            bx, by = xf[inside], yf[inside]
             e = ent.axis
             n = np.array([-e[1], e[0]])
             d = np.stack([np.cos(k_alpha), np.sin(k_alpha)], axis=1)
@@ -137,19 +141,34 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
                     if grp.size == 0:
                         continue
                     ny = sgn * n
-                    for s in range(0, xf.size, CHUNK):
-                        xl = (xf[s:s + CHUNK] - ent.center[0]) * e[0] + (yf[s:s + CHUNK] - ent.center[1]) * e[1]
-                        yl = (xf[s:s + CHUNK] - ent.center[0]) * ny[0] + (yf[s:s + CHUNK] - ent.center[1]) * ny[1]
+                    be0 = np.zeros(bx.size)
+                    for s in range(0, bx.size, CHUNK):
+                        cx = bx[s:s + CHUNK] - ent.center[0]
+                        cy = by[s:s + CHUNK] - ent.center[1]
+                        xl = cx * e[0] + cy * e[1]
+                        yl = cx * ny[0] + cy * ny[1]
                         if use == "exact":
                             U = gap_exact_many(xl, yl, L, local[grp], ent.width)
                             p = U.real**2 + U.imag**2
                         else:
                             p = np.stack([np.abs(gap_superposition(xl, yl, L, a, ent.width))**2
                                           for a in local[grp]], axis=1)
-                        e0[s:s + CHUNK] += p @ w[grp]
-                        e2[s:s + CHUNK] += f * f * (p @ w[grp])
+                        be0[s:s + CHUNK] = p @ w[grp]
+                    e0[inside] += be0
+                    e2[inside] += f * f * be0
                 reaching += float(w[pick].sum())
-        for j in np.nonzero(~batched)[0]:
+        # the batched components still need the general method outside the basin
+        outside = ~inside if inside is not None else None
+        for j in range(sel.size):
+            if batched[j]:
+                if outside is None or not np.any(outside):
+                    continue
+                u, _ = general_field(layout, xf[outside], yf[outside], L, k_alpha[j],
+                                     segments=segments)
+                p = u.real**2 + u.imag**2
+                e0[outside] += w[j] * p
+                e2[outside] += w[j] * f * f * p
+                continue
             u, n_lit = general_field(layout, xf, yf, L, k_alpha[j], segments=segments)
             p = u.real**2 + u.imag**2
             e0 += w[j] * p
