@@ -161,3 +161,35 @@ def distance_to_arms(px, py, layout):
         pts = shapely.points(px, py)
         d = np.minimum(d, shapely.distance(arm.geometry, pts))
     return d
+
+
+def diffracting_edges(layout):
+    """Points of the arms that can diffract: every free head and every interior vertex.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+
+    Returns
+    -------
+    list of (numpy.ndarray, tuple of numpy.ndarray)
+        ``(vertex, directions)``: the vertex (m) and the unit vectors from it along its
+        adjacent segments (one for a free head, two for a bend). Whether a bend
+        actually diffracts depends on the wave direction (see
+        :func:`harbor.solver.layout.general_field`).
+    """
+    out = []
+    for arm in layout.arms:
+        p = np.asarray(arm.line, float)
+        n = len(p)
+
+        def unit(v):
+            return v / np.hypot(*v)
+
+        if not arm.rooted_start:
+            out.append((p[0].copy(), (unit(p[1] - p[0]),)))
+        for i in range(1, n - 1):
+            out.append((p[i].copy(), (unit(p[i - 1] - p[i]), unit(p[i + 1] - p[i]))))
+        if not arm.rooted_end:
+            out.append((p[-1].copy(), (unit(p[-2] - p[-1]),)))
+    return out

@@ -100,12 +100,22 @@ def _barrier_pieces(barriers, box):
     return pieces
 
 
-def _subdivide(pieces, h, scale):
-    """Barrier nodes (unique) and constrained edges (index pairs) at spacing <= h."""
+def _subdivide(pieces, size, scale):
+    """Barrier nodes (unique) and constrained edges (index pairs).
+
+    ``size(p)`` is the wanted edge length (m) at points ``p`` (n, 2); each straight piece
+    is cut so that its edges follow it.
+    """
     pts, edges = [], []
     for a, b in pieces:
-        n = max(int(np.ceil(np.hypot(*(b - a)) / h - 1e-9)), 1)
-        t = np.linspace(0.0, 1.0, n + 1)
+        length = np.hypot(*(b - a))
+        # Place nodes at equal steps of the integral of 1/size along the piece.
+        s_f = np.linspace(0.0, 1.0, 401)
+        inv = 1.0 / size(a + s_f[:, None] * (b - a))
+        cum = np.concatenate([[0.0], np.cumsum(0.5 * (inv[1:] + inv[:-1]) * np.diff(s_f))])
+        cum *= length
+        n = max(int(np.ceil(cum[-1] - 1e-9)), 1)
+        t = np.interp(np.linspace(0.0, cum[-1], n + 1), cum, s_f)
         q = a + t[:, None] * (b - a)
         base = sum(len(p) for p in pts)
         pts.append(q)
@@ -127,12 +137,43 @@ def _subdivide(pieces, h, scale):
     return U, E
 
 
+def _free_tips(pieces, inner, h, scale):
+    """End points of the barrier network that belong to one piece only (free heads)."""
+    ends = np.array([p for ab in pieces for p in ab])
+    tree = cKDTree(ends)
+    cnt = np.array([len(v) for v in tree.query_ball_point(ends, 1e-9 * scale)])
+    tips = ends[cnt == 1]
+    x0, y0, x1, y1 = inner
+    # Ends cut off at the edge of the mesh lie in the absorbing layer: no grading there.
+    away = ((tips[:, 0] > x0 + 0.5 * h) & (tips[:, 0] < x1 - 0.5 * h)
+            & (tips[:, 1] > y0 + 0.5 * h) & (tips[:, 1] < y1 - 0.5 * h))
+    return tips[away]
+
+
+def _tip_rings(tips, h, radius, finest):
+    """Rings of nodes around each tip, spacing growing from ``finest`` to ``h``."""
+    out = []
+    r = 0.5 * finest
+    radii = []
+    while r < radius:
+        radii.append(r)
+        r += max(finest, h * r / radius)
+    for tip in tips:
+        for r in radii:
+            hl = max(finest, h * r / radius)
+            n = max(int(np.ceil(2 * np.pi * r / hl)), 6)
+            ang = 2 * np.pi * (np.arange(n) + 0.5 * (len(out) % 2)) / n
+            out.append(np.column_stack([tip[0] + r * np.cos(ang), tip[1] + r * np.sin(ang)]))
+    return np.concatenate(out) if out else np.zeros((0, 2))
+
+
 def _edge_keys(a, b, n):
     lo, hi = np.minimum(a, b), np.maximum(a, b)
     return lo.astype(np.int64) * n + hi
 
 
-def build(barriers, box, h, max_splits=30):
+def build(barriers, box, h, grade=True, grade_radius=4.0, grade_finest=0.1,
+          max_splits=30):
     """Mesh ``box`` with node spacing about ``h``, conforming to and slit along ``barriers``.
 
     Parameters
@@ -144,6 +185,10 @@ def build(barriers, box, h, max_splits=30):
         (xmin, ymin, xmax, ymax) of the rectangle to mesh (m).
     h : float
         Target edge length (m).
+    grade : bool
+        Refine towards the free tips of the barriers, where the field has its
+        square-root singularity: the edge length falls linearly from ``h`` at
+        ``grade_radius * h`` from a tip to ``grade_finest * h`` at the tip.
 
     Returns
     -------
@@ -155,13 +200,35 @@ def build(barriers, box, h, max_splits=30):
     pieces = _barrier_pieces(barriers, inner)
     lattice = _lattice(box, h)
     if pieces:
+        tips = _free_tips(pieces, inner, h, scale) if grade else np.zeros((0, 2))
+        radius = grade_radius * h
+        finest = grade_finest * h
+        if len(tips):
+            tip_tree = cKDTree(tips)
+
+            def size(p):
+                dist = tip_tree.query(p)[0]
+                return h * np.clip(dist / radius, grade_finest, 1.0)
+
+            rings = _tip_rings(tips, h, radius, finest)
+            own = np.repeat(np.arange(len(tips)), len(rings) // len(tips))
+            dist, which = tip_tree.query(rings)
+            # Where the rings of two tips overlap keep each node only near its own tip.
+            rings = rings[which == own]
+            lattice = lattice[tip_tree.query(lattice)[0] > radius + 0.3 * h]
+            lattice = np.concatenate([lattice, rings])
+        else:
+            def size(p):
+                return np.full(len(p), h)
         near = np.zeros(len(lattice), bool)
+        loc = size(lattice)
         for a, b in pieces:
-            # Slightly more than h/2 keeps every lattice node out of the diametral circles
-            # of the barrier sub-edges (length <= h), so those sub-edges are Gabriel edges.
-            near |= _point_segment_distance(lattice, a, b) < 0.55 * h
+            # Slightly more than half the local edge length keeps every node out of the
+            # diametral circles of the barrier sub-edges, so those sub-edges are Gabriel
+            # edges and hence Delaunay edges.
+            near |= _point_segment_distance(lattice, a, b) < 0.55 * loc
         lattice = lattice[~near]
-        bnodes, bedges = _subdivide(pieces, h, scale)
+        bnodes, bedges = _subdivide(pieces, size, scale)
     else:
         bnodes, bedges = np.zeros((0, 2)), np.zeros((0, 2), int)
 

@@ -302,16 +302,6 @@ def solve_field(barriers, wavelength, direction, region, points_per_wavelength=1
         def wall(v, w):
             sx, xt = stretch(w.x[0], px0, px1)
             sy, yt = stretch(w.x[1], py0, py1)
-            import os
-            mode = os.environ.get("PMLSRC", "cont")
-            if mode == "real":
-                xt, yt = w.x[0], w.x[1]
-            elif mode == "cap":
-                # keep the continuation only where it decays
-                xt = np.where(d[0] * xt.imag >= 0, xt, xt.real)
-                yt = np.where(d[1] * yt.imag >= 0, yt, yt.real)
-            elif mode == "real1":
-                xt, yt = w.x[0], w.x[1]; sx = sy = 1.0
             _, ux, uy = _incident(xt, yt, k, d)
             # n is the outward normal of the water, i.e. into the barrier face.
             return -(sy * w.n[0] * ux + sx * w.n[1] * uy) * v

@@ -23,7 +23,8 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from harbor.geometry.entrance import basin_mask, nearest_heads
-from harbor.geometry.visibility import layout_segments, ray_blocked, segment_blocked
+from harbor.geometry.visibility import (diffracting_edges, layout_segments, ray_blocked,
+                                        segment_blocked)
 from harbor.solver.kernels.gap import AUTO_EXACT_BELOW, auto_method, gap
 from harbor.solver.kernels.sommerfeld import sommerfeld_terms
 
@@ -124,7 +125,30 @@ def gap_field(entrance, px, py, wavelength, alpha, method="auto"):
     return phase0 * gap(x, y, wavelength, local_dir, entrance.width, method=method), method
 
 
-def general_field(layout, px, py, wavelength, alpha, segments=None):
+def head_visibility(layout, px, py, segments=None):
+    """For every diffracting edge (free heads and bends, as
+    :func:`harbor.geometry.visibility.diffracting_edges`): where it is visible from.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+    px, py : numpy.ndarray
+        Points (m), 1-D.
+    segments : tuple, optional
+        Output of :func:`harbor.geometry.visibility.layout_segments`.
+
+    Returns
+    -------
+    list of numpy.ndarray of bool
+        Independent of the waves, so a random sea computes it once for all components.
+    """
+    if segments is None:
+        segments = layout_segments(layout)
+    return [~segment_blocked(px, py, v[0], v[1], segments[0])
+            for v, _ in diffracting_edges(layout)]
+
+
+def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None):
     r"""Geometric optics of the whole layout plus each lit head's diffracted wave.
 
     Parameters
@@ -138,6 +162,8 @@ def general_field(layout, px, py, wavelength, alpha, segments=None):
         Direction of travel (rad, math angle in the work frame).
     segments : tuple, optional
         Output of :func:`harbor.geometry.visibility.layout_segments` (to reuse).
+    visible : list of numpy.ndarray, optional
+        Output of :func:`head_visibility` for the same (flattened) points (to reuse).
 
     Returns
     -------
@@ -153,12 +179,19 @@ def general_field(layout, px, py, wavelength, alpha, segments=None):
         u = \chi_i\, e^{ik\,\mathbf d\cdot\mathbf x}
           + \sum_{\text{faces}} \chi_r\, e^{ik[\mathbf d\cdot\mathbf a
             + \mathbf d_r\cdot(\mathbf x - \mathbf a)]}
-          + \sum_{\text{lit heads}} \chi_h\, e^{ik\,\mathbf d\cdot\mathbf h}\, D_h(\mathbf x)
+          + \sum_{\text{lit edges}} \chi_h\, e^{ik\,\mathbf d\cdot\mathbf h}\, D_h(\mathbf x)
 
     with :math:`\chi` the visibility indicators, :math:`\mathbf d_r` the mirror image of
     the travel direction in a face and :math:`D_h` the diffracted part of Sommerfeld's
-    solution for the head h and its end segment
-    (:func:`harbor.solver.kernels.sommerfeld.sommerfeld_terms`).
+    solution for the edge h (:func:`harbor.solver.kernels.sommerfeld.sommerfeld_terms`).
+    The edges are the free heads (half-plane along the end segment) and the bends of an
+    arm that cast a shadow boundary, i.e. whose two segments lie on the same side of the
+    ray through the bend (half-plane along the more up-wave segment, whose face is lit).
+    A bend whose two faces are both struck casts no shadow; there only the
+    reflection-boundary part of each face's half-plane solution is added. Either way the
+    jumps of the geometric field across the bend's shadow and reflection boundaries are
+    removed exactly; a wedge solution would be exact there, so fields within a wavelength
+    of a sharp bend are approximate (the accuracy table in docs/ measures it).
 
     References
     ----------
@@ -218,24 +251,44 @@ def general_field(layout, px, py, wavelength, alpha, segments=None):
         phase = np.dot(d, a) + (px[idx] - a[0]) * dr[0] + (py[idx] - a[1]) * dr[1]
         u[idx] += np.exp(1j * k * phase)
 
-    # diffraction by each lit head
+    # diffraction by each lit head, and by each bend that casts a shadow boundary
     n_lit = 0
-    for arm in layout.arms:
-        for tip, inward in arm.heads():
-            if ray_blocked(np.array([tip[0]]), np.array([tip[1]]), up, segments,
-                           open_ends=open_ends)[0]:
-                continue
+    left = np.array([-d[1], d[0]])
+    for ei, (tip, dirs) in enumerate(diffracting_edges(layout)):
+        if len(dirs) == 2:
+            an, bn = float(np.dot(dirs[0], left)), float(np.dot(dirs[1], left))
+            if an * bn > 0:
+                # a shadow boundary starts at the bend: half-plane along the more up-wave
+                # segment, whose face is the lit one
+                planes = [(dirs[0] if np.dot(dirs[0], d) < np.dot(dirs[1], d) else dirs[1], "both")]
+            elif np.dot(dirs[0], dirs[1]) > -np.cos(np.radians(5.0)):
+                # the wave meets the bend from outside on both faces: only the reflection
+                # boundaries need smoothing, one half-plane per face
+                planes = [(dirs[0], "reflection"), (dirs[1], "reflection")]
+            else:
+                continue          # practically straight: nothing to smooth
+        else:
+            planes = [(dirs[0], "both")]
+        if ray_blocked(np.array([tip[0]]), np.array([tip[1]]), up, segments,
+                       open_ends=open_ends)[0]:
+            continue
+        if len(dirs) == 1:
             n_lit += 1
+        if visible is not None:
+            seen = visible[ei]
+        else:
+            seen = ~segment_blocked(px, py, tip[0], tip[1], segments)
+        if not np.any(seen):
+            continue
+        for inward, part in planes:
             ey = np.array([-inward[1], inward[0]])
             if np.dot(ey, d) < 0:
                 ey = -ey
             local = np.arctan2(np.dot(d, ey), np.dot(d, inward))
             local = np.clip(local, np.radians(GRAZING_DEG), np.pi - np.radians(GRAZING_DEG))
-            seen = ~segment_blocked(px, py, tip[0], tip[1], segments)
-            if not np.any(seen):
-                continue
             xl, yl = _local(px[seen], py[seen], tip, inward, ey)
-            _, _, diff = sommerfeld_terms(xl, yl, k, local)
+            _, _, (d1, d2) = sommerfeld_terms(xl, yl, k, local, split=True)
+            diff = d1 + d2 if part == "both" else d2
             u[seen] += np.exp(1j * k * np.dot(d, tip)) * diff
     return u.reshape(shape), n_lit
 

@@ -20,6 +20,7 @@ from harbor.solver.layout import (
     METHOD_GENERAL,
     classic_entrance,
     general_field,
+    head_visibility,
 )
 from harbor.geometry.entrance import basin_mask
 from harbor.geometry.visibility import layout_segments
@@ -102,7 +103,9 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
     e0 = np.zeros(xf.size)
     e2 = np.zeros(xf.size)
     segments = layout_segments(layout)
+    visible_all = head_visibility(layout, xf, yf, segments)
     bands = np.unique(freq)
+    vis_out = {}
     methods: dict = {}
     reaching = 0.0
     for bi, f in enumerate(bands):
@@ -163,13 +166,18 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
             if batched[j]:
                 if outside is None or not np.any(outside):
                     continue
+                key = id(outside)
+                if key not in vis_out:
+                    vis_out.clear()
+                    vis_out[key] = [v[outside] for v in visible_all]
                 u, _ = general_field(layout, xf[outside], yf[outside], L, k_alpha[j],
-                                     segments=segments)
+                                     segments=segments, visible=vis_out[key])
                 p = u.real**2 + u.imag**2
                 e0[outside] += w[j] * p
                 e2[outside] += w[j] * f * f * p
                 continue
-            u, n_lit = general_field(layout, xf, yf, L, k_alpha[j], segments=segments)
+            u, n_lit = general_field(layout, xf, yf, L, k_alpha[j], segments=segments,
+                                     visible=visible_all)
             p = u.real**2 + u.imag**2
             e0 += w[j] * p
             e2 += w[j] * f * f * p

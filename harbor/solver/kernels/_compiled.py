@@ -23,6 +23,8 @@ from harbor.solver.kernels.fresnel import _N_TABLE as _A_N
 from harbor.solver.kernels.fresnel import _VAL as _A_VAL
 
 _EULER_GAMMA = 0.5772156649015329
+#: Below this many evaluations the compiled kernels run on one core.
+_PARALLEL_MIN = 1_000_000
 _Z_SERIES = 8.0
 _Z_ASYM = 25.0
 _H_STEP = 1.0 / 128.0
@@ -90,8 +92,7 @@ if HAVE_NUMBA:
         y0 = (2.0 / np.pi) * ((np.log(0.5 * z) + _EULER_GAMMA) * j0 + ys)
         return j0 + 1j * y0
 
-    @numba.njit(cache=True, parallel=True)
-    def _hankel_matrix(xp, yp, xs, k, gval, gder, asym, cj, cy):
+    def _hankel_matrix_py(xp, yp, xs, k, gval, gder, asym, cj, cy):
         n = xp.size
         m = xs.size
         out = np.empty((n, m), np.complex128)
@@ -102,8 +103,15 @@ if HAVE_NUMBA:
                 out[p, j] = _h0(z, gval, gder, asym, cj, cy)
         return out
 
-    @numba.njit(cache=True, parallel=True)
-    def _amplitude(t, val, der, ntab):
+    _hankel_matrix_par = numba.njit(cache=True, parallel=True)(_hankel_matrix_py)
+    _hankel_matrix_ser = numba.njit(cache=True)(_hankel_matrix_py)
+
+    def _hankel_matrix(xp, yp, xs, *args):
+        # Starting the thread pool costs milliseconds: small blocks run on one core.
+        big = xp.size * xs.size >= _PARALLEL_MIN
+        return (_hankel_matrix_par if big else _hankel_matrix_ser)(xp, yp, xs, *args)
+
+    def _amplitude_py(t, val, der, ntab):
         out = np.empty(t.size, np.complex128)
         h = 1.0 / ntab
         for p in numba.prange(t.size):
@@ -116,6 +124,12 @@ if HAVE_NUMBA:
             out[p] = ((2 * s3 - 3 * s2 + 1) * val[i] + (-2 * s3 + 3 * s2) * val[i + 1]
                       + h * ((s3 - 2 * s2 + s) * der[i] + (s3 - s2) * der[i + 1]))
         return out
+
+    _amplitude_par = numba.njit(cache=True, parallel=True)(_amplitude_py)
+    _amplitude_ser = numba.njit(cache=True)(_amplitude_py)
+
+    def _amplitude(t, *args):
+        return (_amplitude_par if t.size >= _PARALLEL_MIN else _amplitude_ser)(t, *args)
 
 
 def hankel_matrix(xp, yp, xs, k):

@@ -25,7 +25,7 @@ def check_direction(direction) -> float:
     return np.deg2rad(d)
 
 
-def sommerfeld_terms(x, y, k, alpha, amplitude=_fast_amplitude):
+def sommerfeld_terms(x, y, k, alpha, amplitude=_fast_amplitude, split=False):
     r"""The pieces of Sommerfeld's solution at points (x, y): geometric optics and diffraction.
 
     Parameters
@@ -39,6 +39,9 @@ def sommerfeld_terms(x, y, k, alpha, amplitude=_fast_amplitude):
     amplitude : callable, optional
         Implementation of the diffraction amplitude A(t)
         (:mod:`harbor.solver.kernels.fresnel`); default the compiled table (error < 1e-12).
+    split : bool, optional
+        Return the diffracted wave as its two parts (the one that smooths the shadow
+        boundary and the one that smooths the reflection boundary) instead of their sum.
 
     Returns
     -------
@@ -46,7 +49,7 @@ def sommerfeld_terms(x, y, k, alpha, amplitude=_fast_amplitude):
         True where the incident wave is present geometrically (outside the shadow).
     reflected_lit : numpy.ndarray of bool
         True where the wave reflected by the seaward face is present geometrically.
-    diffracted : numpy.ndarray of complex
+    diffracted : numpy.ndarray of complex, or a pair of them when ``split``
         The diffracted wave (normalised by the incident amplitude).
 
     Notes
@@ -89,9 +92,11 @@ def sommerfeld_terms(x, y, k, alpha, amplitude=_fast_amplitude):
     lit1 = s1 >= -1e-9
     lit2 = s2 >= -1e-9
     spread = np.exp(1j * k * r)
-    d = spread * (np.where(lit1, -1.0, 1.0) * amplitude(np.abs(s1))
-                  + np.where(lit2, -1.0, 1.0) * amplitude(np.abs(s2)))
-    return lit1, lit2, d
+    d1 = spread * np.where(lit1, -1.0, 1.0) * amplitude(np.abs(s1))
+    d2 = spread * np.where(lit2, -1.0, 1.0) * amplitude(np.abs(s2))
+    if split:
+        return lit1, lit2, (d1, d2)
+    return lit1, lit2, d1 + d2
 
 
 def semi_infinite(x, y, wavelength, direction):
