@@ -12,7 +12,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from harbor.solver.kernels.gap import auto_method, gap_exact_many, gap_superposition
+from harbor.solver.kernels.gap import auto_method, gap_exact_energy, gap_superposition
 from harbor.solver.layout import (
     GRAZING_DEG,
     METHOD_GAP_EXACT,
@@ -26,9 +26,14 @@ from harbor.geometry.entrance import basin_mask
 from harbor.geometry.visibility import layout_segments
 from harbor.waves.dispersion import wavelength as _wavelength
 
+#: In ``method="auto"``, random seas use the exact gap solution for every component of a
+#: classic entrance narrower than this many wavelengths (its cost, batched over the
+#: directions of a frequency band, is below that of the per-direction superposition).
+BATCH_EXACT_BELOW = 16.0
+
 #: Points per block: bounds the memory of a random-sea solve (one block holds a complex
 #: field per direction of one frequency band).
-CHUNK = 16384
+CHUNK = 65536
 
 
 @dataclass
@@ -132,6 +137,10 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
             for use in ("exact", "superposition"):
                 if method in ("exact", "superposition"):
                     pick = ok & (use == method)
+                elif ent.width < BATCH_EXACT_BELOW * L:
+                    # batched over directions the exact solution is both more accurate and
+                    # cheaper than per-direction superpositions
+                    pick = ok & (use == "exact")
                 else:
                     pick = ok & np.array([auto_method(L, a, ent.width) == use for a in local])
                 if not np.any(pick):
@@ -151,12 +160,12 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
                         xl = cx * e[0] + cy * e[1]
                         yl = cx * ny[0] + cy * ny[1]
                         if use == "exact":
-                            U = gap_exact_many(xl, yl, L, local[grp], ent.width)
-                            p = U.real**2 + U.imag**2
+                            be0[s:s + CHUNK] = gap_exact_energy(xl, yl, L, local[grp], ent.width,
+                                                                w[grp])
                         else:
                             p = np.stack([np.abs(gap_superposition(xl, yl, L, a, ent.width))**2
                                           for a in local[grp]], axis=1)
-                        be0[s:s + CHUNK] = p @ w[grp]
+                            be0[s:s + CHUNK] = p @ w[grp]
                     e0[inside] += be0
                     e2[inside] += f * f * be0
                 reaching += float(w[pick].sum())
