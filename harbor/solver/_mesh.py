@@ -212,7 +212,7 @@ def build(barriers, box, h, grade=True, grade_radius=4.0, grade_finest=0.1,
 
             rings = _tip_rings(tips, h, radius, finest)
             own = np.repeat(np.arange(len(tips)), len(rings) // len(tips))
-            dist, which = tip_tree.query(rings)
+            which = tip_tree.query(rings)[1]
             # Where the rings of two tips overlap keep each node only near its own tip.
             rings = rings[which == own]
             lattice = lattice[tip_tree.query(lattice)[0] > radius + 0.3 * h]
