@@ -103,10 +103,11 @@ def _select_sea(scenario, name):
 
 
 def cmd_check(args):
-    from harbor.solver.assemble import check
+    from harbor.solver.assemble import solve
 
     sc = _load(args.scenario)
-    warnings = check(sc)
+    ds = solve(sc, grid=False)
+    warnings = [w for w in ds.attrs["warnings"].split("\n") if w]
     site = sc.site
     print(f"{args.scenario}: valid — {len(sc.layout.arms)} arm(s), {len(sc.layout.lands)} land "
           f"polygon(s), {len(sc.seas)} sea state(s), {len(sc.points)} point(s)")
@@ -117,6 +118,9 @@ def cmd_check(args):
 
         gx, gy = grid_coordinates(sc.grid)
         print(f"  grid {gx.size} x {gy.size} points at {sc.grid.spacing:g} m")
+    print("methods:")
+    for name, method, L in zip(ds.sea.values, ds.sea_method.values, ds.sea_wavelength.values):
+        print(f"  - {name}: {method} (L = {L:.1f} m)")
     if warnings:
         print("warnings:")
         for w in warnings:
