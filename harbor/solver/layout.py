@@ -35,8 +35,10 @@ LONG_ARM_WAVELENGTHS = 3.0
 #: that head's local solution is evaluated a hair off parallel.
 GRAZING_DEG = 0.01
 
-METHOD_GAP_EXACT = "exact aperture solution (classic entrance)"
-METHOD_GAP_SUPERPOSITION = "Penney & Price superposition (classic entrance)"
+METHOD_GAP_EXACT = ("exact aperture solution in the basin (classic entrance), "
+                    "geometric optics + head diffraction outside")
+METHOD_GAP_SUPERPOSITION = ("Penney & Price superposition in the basin (classic entrance), "
+                            "geometric optics + head diffraction outside")
 METHOD_GENERAL = "geometric optics + head diffraction (general layout)"
 
 

@@ -278,9 +278,10 @@ def _solve_case(scenario, method, case, name):
 def _threads_safe() -> bool:
     """Whether the compiled kernels may run in several threads at once.
 
-    Numba's OpenMP and TBB threading layers accept concurrent parallel regions; its
-    fallback "workqueue" layer aborts on them. The layer is known only once a parallel
-    kernel has run, so this is asked after the first case.
+    Numba's OpenMP and TBB threading layers accept parallel regions launched from
+    several threads at once; its fallback "workqueue" layer aborts on them. The layer
+    in use is known once a parallel kernel has run; before that, the one Numba will
+    pick is the first of TBB, OpenMP, workqueue that loads (unless configured).
     """
     try:
         import numba
@@ -288,8 +289,22 @@ def _threads_safe() -> bool:
         return True
     try:
         return numba.threading_layer() in ("omp", "tbb")
-    except ValueError:  # no parallel kernel has run: the layer is unknown
+    except ValueError:  # no parallel kernel has run yet
+        pass
+    layer = str(numba.config.THREADING_LAYER).lower()
+    if layer in ("omp", "tbb", "threadsafe", "safe"):
+        return True
+    if layer != "default":
         return False
+    import importlib
+
+    for mod in ("numba.np.ufunc.tbbpool", "numba.np.ufunc.omppool"):
+        try:
+            importlib.import_module(mod)
+            return True
+        except Exception:  # noqa: BLE001 - a missing shared library raises OSError/ImportError
+            continue
+    return False
 
 
 def _run_cases(scenario, cases, method, workers, progress):
@@ -548,7 +563,7 @@ def plot_downtime(result, path, title=None, dpi=150):
     colours = ["#0072b2", "#d55e00", "#009e73", "#cc79a7", "#e69f00", "#56b4e9",
                "#000000", "#f0e442"]
     fig = new_figure((10.0, 6.0))
-    ax = fig.add_axes((0.08, 0.22, 0.64, 0.68))
+    ax = fig.add_axes((0.07, 0.22, 0.58, 0.68))
     x = np.arange(len(order))
     ax.bar(x, [occ[c] for c in order], width=0.9, color="#e3e3e3", edgecolor="#bbbbbb",
            label="time from the sector")
@@ -667,6 +682,7 @@ def cmd_climate(args):
         ent = nearest_heads(sc.layout)
         if ent is not None:
             print(f"entrance between the nearest heads: {ent.width:.1f} m")
+            title = f"Berth downtime by wave direction (entrance {ent.width:.1f} m)"
     res = climate_downtime(sc, table, method=args.method, workers=args.workers,
                            progress=_progress_printer(args.quiet))
     written = write_climate(res, args.out, title=title)
