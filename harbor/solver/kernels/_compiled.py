@@ -1,4 +1,8 @@
-"""Compiled (numba) inner loops of the kernels, parallel over points.
+"""Compiled (numba) inner loops of the kernels.
+
+They release the GIL (``nogil``), so callers spread work over cores with threads (the
+climate screening does); they hold no thread pool of their own, so they are safe to call
+from several threads at once.
 
 These are the hot paths of directional random seas: the Hankel matrix of the aperture
 solution and the diffraction amplitude of Sommerfeld's solution. Each function has a
@@ -23,8 +27,6 @@ from harbor.solver.kernels.fresnel import _N_TABLE as _A_N
 from harbor.solver.kernels.fresnel import _VAL as _A_VAL
 
 _EULER_GAMMA = 0.5772156649015329
-#: Below this many evaluations the compiled kernels run on one core.
-_PARALLEL_MIN = 200_000
 _Z_SERIES = 8.0
 _Z_ASYM = 25.0
 _H_STEP = 1.0 / 128.0
@@ -129,25 +131,19 @@ if HAVE_NUMBA:
         n = xp.size
         m = xs.size
         out = np.empty((n, m), np.complex128)
-        for p in numba.prange(n):
+        for p in range(n):
             for j in range(m):
                 dx = xp[p] - xs[j]
                 z = k * np.sqrt(dx * dx + yp[p] * yp[p])
                 out[p, j] = _h0(z, gval, gder, asym, cj, cy)
         return out
 
-    _hankel_matrix_par = numba.njit(cache=True, parallel=True)(_hankel_matrix_py)
-    _hankel_matrix_ser = numba.njit(cache=True)(_hankel_matrix_py)
-
-    def _hankel_matrix(xp, yp, xs, *args):
-        # Starting the thread pool costs milliseconds: small blocks run on one core.
-        big = xp.size * xs.size >= _PARALLEL_MIN
-        return (_hankel_matrix_par if big else _hankel_matrix_ser)(xp, yp, xs, *args)
+    _hankel_matrix = numba.njit(cache=True, nogil=True)(_hankel_matrix_py)
 
     def _amplitude_py(t, val, der, ntab):
         out = np.empty(t.size, np.complex128)
         h = 1.0 / ntab
-        for p in numba.prange(t.size):
+        for p in range(t.size):
             u = 1.0 / (1.0 + t[p])
             pos = u * ntab
             i = min(int(pos), ntab - 1)
@@ -158,11 +154,7 @@ if HAVE_NUMBA:
                       + h * ((s3 - 2 * s2 + s) * der[i] + (s3 - s2) * der[i + 1]))
         return out
 
-    _amplitude_par = numba.njit(cache=True, parallel=True)(_amplitude_py)
-    _amplitude_ser = numba.njit(cache=True)(_amplitude_py)
-
-    def _amplitude(t, *args):
-        return (_amplitude_par if t.size >= _PARALLEL_MIN else _amplitude_ser)(t, *args)
+    _amplitude = numba.njit(cache=True, nogil=True)(_amplitude_py)
 
 
 def hankel_matrix(xp, yp, xs, k):
@@ -213,7 +205,7 @@ if HAVE_NUMBA:
         nd = cos_a.size
         out = np.zeros(n)
         nblocks = (n + _BLOCK - 1) // _BLOCK
-        for blk in numba.prange(nblocks):
+        for blk in range(nblocks):
             hr = np.empty(m)
             hi = np.empty(m)
             ar = np.empty(nd)
@@ -249,8 +241,7 @@ if HAVE_NUMBA:
                 out[p] = e
         return out
 
-    _gap_energy_par = numba.njit(cache=True, parallel=True, fastmath=True)(_gap_energy_py)
-    _gap_energy_ser = numba.njit(cache=True, fastmath=True)(_gap_energy_py)
+    _gap_energy = numba.njit(cache=True, nogil=True, fastmath=True)(_gap_energy_py)
 
 
 def gap_energy(xp, yp, xs, k, W, cos_a, sin_a, weights, scale):
@@ -269,9 +260,7 @@ def gap_energy(xp, yp, xs, k, W, cos_a, sin_a, weights, scale):
             np.ascontiguousarray(sin_a, float), np.ascontiguousarray(weights, float),
             float(np.real(scale)), float(np.imag(scale)))
     if HAVE_NUMBA:
-        big = xp.size * xs.size * (1 + cos_a.size) >= _PARALLEL_MIN
-        fn = _gap_energy_par if big else _gap_energy_ser
-        return fn(*args, _G_VAL, _G_DER, _ASYM, _CJ, _CY)
+        return _gap_energy(*args, _G_VAL, _G_DER, _ASYM, _CJ, _CY)
     H = hankel_matrix(xp, yp, xs, k)  # pragma: no cover
     U = scale * (H @ W)  # pragma: no cover
     sea = yp < 0  # pragma: no cover

@@ -7,6 +7,7 @@ factor exp(-i w t), incident phase zero at the origin.
 
 from __future__ import annotations
 
+import threading
 from functools import lru_cache
 
 import numpy as np
@@ -28,6 +29,7 @@ __all__ = ["gap", "gap_superposition", "gap_exact", "gap_exact_many", "gap_exact
 AUTO_EXACT_BELOW = 3.0
 
 _EULER_GAMMA = 0.5772156649015329
+_LAPACK_LOCK = threading.Lock()
 
 
 def _check(wavelength, width):
@@ -121,10 +123,13 @@ def _aperture_matrix(kb: float, m: int):
 
 def _aperture_cached(kb: float, cos_alpha, m: int):
     """Nodes t and w (see :func:`aperture_solution`); ``cos_alpha`` scalar or 1-D."""
-    t, lu = _aperture_matrix(float(kb), int(m))
-    ca = np.atleast_1d(np.asarray(cos_alpha, float))
-    rhs = 2j * np.exp(1j * kb * t[:, None] * ca[None, :])
-    w = linalg.lu_solve(lu, rhs, check_finite=False)   # v(b t) b sqrt(1 - t^2)
+    # One LAPACK call at a time: concurrent calls from a thread pool have aborted the
+    # bundled BLAS under load; the solve itself takes microseconds.
+    with _LAPACK_LOCK:
+        t, lu = _aperture_matrix(float(kb), int(m))
+        ca = np.atleast_1d(np.asarray(cos_alpha, float))
+        rhs = 2j * np.exp(1j * kb * t[:, None] * ca[None, :])
+        w = linalg.lu_solve(lu, rhs, check_finite=False)   # v(b t) b sqrt(1 - t^2)
     return t, (w[:, 0] if np.ndim(cos_alpha) == 0 else w)
 
 
@@ -424,7 +429,8 @@ def gap_exact_energy(x, y, wavelength, directions, width, weights, nodes=None):
         # In the lee sum_d w_d |h.W_d|^2 = h^H conj(M) h with M = W diag(w) W^H: its few
         # significant eigenvectors replace the directions (rank ~12-20 instead of ~36).
         M = (Wf * wts) @ Wf.conj().T
-        lam, V = np.linalg.eigh(M)
+        with _LAPACK_LOCK:
+            lam, V = np.linalg.eigh(M)
         keep = lam > 1e-13 * max(lam[-1], 1e-300)
         Wl = V[:, keep] * np.sqrt(lam[keep])
         r = Wl.shape[1]
