@@ -85,7 +85,18 @@ def sector_of(from_deg):
 
 
 def sector_label(centre: int) -> str:
-    """``"345-015"`` for the sector centred on 0, and so on."""
+    """The range of a direction sector as text.
+
+    Parameters
+    ----------
+    centre : int
+        Sector centre, degrees (0, 30, ..., 330).
+
+    Returns
+    -------
+    str
+        ``"345-015"`` for the sector centred on 0, and so on.
+    """
     lo = (centre - SECTOR_DEG // 2) % 360
     hi = (centre + SECTOR_DEG // 2) % 360
     return f"{lo:03d}-{hi:03d}"
@@ -249,7 +260,19 @@ def climate_table(table):
 
 
 def percent_warning(table):
-    """A warning when the percentages do not add up to 100 within 1, else None."""
+    """A warning when the percentages do not add up to 100.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`read_climate` or :func:`climate_table`.
+
+    Returns
+    -------
+    str or None
+        The warning (naming the file and the sum) when the sum is off 100 by more than
+        :data:`PERCENT_TOLERANCE` percentage points, else None.
+    """
     total = float(table["percent"].sum())
     if abs(total - 100.0) > PERCENT_TOLERANCE:
         file = table.attrs.get("file")
@@ -308,9 +331,10 @@ def _threads_safe() -> bool:
 
 
 def _run_cases(scenario, cases, method, workers, progress):
-    # Threads, not processes. Measured on the demo climate (31 cases, 2 cores shared
-    # with other jobs): one after the other 13-14 s, two threads 11-13 s, two forked
-    # processes 14-18 s, two fork-server processes 17-18 s (each must import harbor).
+    # Threads, not processes. Measured on the demo climate (31-34 cases, 2 cores shared
+    # with other jobs, so the spread is wide): one after the other 10-14 s, two threads
+    # 7-13 s, two forked processes 14-18 s, two fork-server processes 17-18 s (each must
+    # import harbor).
     # Threads also need no pickling, no `if __name__ == "__main__"` guard in the user's
     # script, and are safe with the kernels' OpenMP runtime, which forking is not.
     n = len(cases)
@@ -439,10 +463,11 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
     hb = BREAKING_RATIO * scenario.site.depth
     over = heights > hb
     if over.any():
-        rows_over = ", ".join(str(r) for r in tab.index[over.any(axis=1)][:10])
+        bad = tab.index[over.any(axis=1)]
+        listed = ", ".join(str(r) for r in bad[:10]) + (" ..." if len(bad) > 10 else "")
         warnings.append(f"heights above the depth-limited breaking height 0.78 h = {hb:.2f} m "
-                        f"in climate rows {rows_over}{' ...' if over.any(axis=1).sum() > 10 else ''}"
-                        " (flagged, not changed: waves there would break)")
+                        f"in climate rows {listed} (flagged, not changed: waves there "
+                        "would break)")
     far = reach < 0.5
     if far.any():
         warnings.append(f"{int(far.sum())} climate row(s) ({pct[far].sum():.1f} % of time) come "
@@ -496,7 +521,19 @@ def _order(occurrence):
 
 
 def downtime_text(result) -> str:
-    """The terminal table of ``harbor climate``."""
+    """The terminal table of ``harbor climate``.
+
+    Parameters
+    ----------
+    result : ClimateResult
+        From :func:`climate_downtime`.
+
+    Returns
+    -------
+    str
+        Per point: limit (m), total downtime (%) and downtime per sector (%), for the
+        sectors the climate has any time in; last line the time from each sector (%).
+    """
     down, occ = result.downtime, result.occurrence
     order = _order(occ)
     head = f"{'point':<18}{'limit':>7}{'total':>8}  |" + "".join(f"{sector_label(c):>9}"
@@ -514,7 +551,19 @@ def downtime_text(result) -> str:
 
 
 def downtime_csv_text(result) -> str:
-    """CSV of the downtime table: ``point,limit,total,000,030,...,330`` (%), no comments."""
+    """CSV of the downtime table.
+
+    Parameters
+    ----------
+    result : ClimateResult
+        From :func:`climate_downtime`.
+
+    Returns
+    -------
+    str
+        Columns ``point,limit,total,000,030,...,330``: limit in m, the others in % of
+        all time (sector columns by their centre, degrees true); no comment lines.
+    """
     d = result.downtime.reset_index()
     d.columns = ["point", "limit", "total"] + [f"{c:03d}" for c in SECTORS]
     buf = io.StringIO()
@@ -523,7 +572,19 @@ def downtime_csv_text(result) -> str:
 
 
 def rows_csv_text(result) -> str:
-    """CSV of every climate row at every point (``exceeds`` as true/false)."""
+    """CSV of every climate row at every point.
+
+    Parameters
+    ----------
+    result : ClimateResult
+        From :func:`climate_downtime`.
+
+    Returns
+    -------
+    str
+        The columns of ``result.rows`` (heights in m, period in s, directions in
+        degrees true, percent in %); ``exceeds`` as ``true``/``false``.
+    """
     r = result.rows.copy()
     r["exceeds"] = np.where(r["exceeds"], "true", "false")
     buf = io.StringIO()
@@ -626,7 +687,18 @@ def write_climate(result, out_dir, title=None):
 # --------------------------------------------------------------------------- command line
 
 def add_climate_parser(subparsers):
-    """Add ``harbor climate`` to the command's subparsers."""
+    """Add ``harbor climate`` to the command's subparsers.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        From ``ArgumentParser.add_subparsers``.
+
+    Returns
+    -------
+    argparse.ArgumentParser
+        The ``climate`` parser (its ``func`` default is :func:`cmd_climate`).
+    """
     import argparse
 
     from harbor.cli import EPILOG_TAIL
@@ -638,11 +710,13 @@ def add_climate_parser(subparsers):
     sp.add_argument("scenario", help="scenario file (TOML); its points' limits are used")
     sp.add_argument("--table", required=True, metavar="FILE",
                     help="climate table (CSV: height,period,from,percent[,spreading])")
-    sp.add_argument("--arm", help="first move the free head of this arm (with --move)")
+    sp.add_argument("--arm", metavar="NAME",
+                    help="first move the free head of this arm (with --move)")
     sp.add_argument("--move", type=float, metavar="METRES",
                     help="distance to move that head along its end segment (positive "
                          "lengthens)")
-    sp.add_argument("--out", default="harbor-out", help="output folder (default harbor-out)")
+    sp.add_argument("--out", default="harbor-out", metavar="DIR",
+                    help="output folder (default harbor-out)")
     sp.add_argument("--workers", type=int, metavar="N",
                     help="threads to use (default: one per core)")
     sp.add_argument("--quiet", action="store_true", help="no progress bar")
@@ -653,7 +727,18 @@ def add_climate_parser(subparsers):
 
 
 def cmd_climate(args):
-    """Run ``harbor climate``: parse, call :func:`climate_downtime`, write, print."""
+    """Run ``harbor climate``: call :func:`climate_downtime`, write, print the table.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        From the parser of :func:`add_climate_parser`.
+
+    Returns
+    -------
+    int
+        0; user mistakes raise :class:`harbor.errors.InputError`.
+    """
     from harbor.cli import _load, _progress_printer
     from harbor.geometry.entrance import nearest_heads
     from harbor.study.sweep import MoveRejected, move_head

@@ -43,8 +43,8 @@ Moves the free head of the arm along its end segment by each distance from MIN t
 in steps of STEP metres (positive lengthens the arm and narrows the entrance), solves
 every sea state (or --sea) at the scenario's points, and writes sweep-<arm>.csv
 (columns move,entrance_width,sea,point,kd,height,limit,ok) and sweep-<arm>.png. Moves
-that would make arms cross, put the head in land or shorten the arm past its last bend
-are reported and skipped.
+that would make arms cross, put the head in land or shorten the arm past the other end
+of its end segment are reported and skipped.
 """
 
 
@@ -339,12 +339,33 @@ def widest_ok(table):
 
 
 def has_limits(table) -> bool:
-    """Whether any point in a sweep table has a limit."""
+    """Whether any point in a sweep table has a limit.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`sweep`.
+
+    Returns
+    -------
+    bool
+    """
     return bool(table["limit"].notna().any())
 
 
 def verdict(table) -> str:
-    """The one-line answer of a sweep, as printed by ``harbor sweep``."""
+    """The one-line answer of a sweep, as printed by ``harbor sweep``.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`sweep`.
+
+    Returns
+    -------
+    str
+        The widest passing entrance width (see :func:`widest_ok`), or why there is none.
+    """
     if table.empty:
         return "no position of the head could be computed (every move was skipped)"
     if not has_limits(table):
@@ -358,11 +379,77 @@ def verdict(table) -> str:
             f"{best[0]:.1f} m (move {best[1]:+g} m)")
 
 
+def sweep_summary(table):
+    """The highest height over the sea states at each point, for each head position.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`sweep`.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Index (``move``, ``entrance_width``), one column per point: the largest height
+        (m) over the sea states at that position.
+    """
+    out = table.pivot_table(index=["move", "entrance_width"], columns="point",
+                            values="height", aggfunc="max", sort=False)
+    out.columns.name = None
+    return out[list(dict.fromkeys(table["point"]))]
+
+
+def sweep_text(table) -> str:
+    """The terminal table of ``harbor sweep``.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`sweep`.
+
+    Returns
+    -------
+    str
+        One line per head position: move (m), entrance width (m) and, per point, the
+        highest height over the sea states (m), marked ``*`` above the point's limit.
+    """
+    summ = sweep_summary(table)
+    limits = table.groupby("point", sort=False)["limit"].first()
+    names = list(summ.columns)
+    w = max(10, *(min(len(n), 16) + 2 for n in names))
+    head = f"{'move':>8}{'width':>9}  " + "".join(f"{n[:16]:>{w}}" for n in names)
+    lim = f"{'(m)':>8}{'(m)':>9}  " + "".join(
+        f"{'limit ' + format(limits[n], '.2f') if not math.isnan(limits[n]) else 'no limit':>{w}}"
+        for n in names)
+    lines = ["highest wave height over the sea states (m); * above the point's limit",
+             head, lim, "-" * len(head)]
+    for (m, width), r in summ.iterrows():
+        cells = []
+        for n in names:
+            over = not math.isnan(limits[n]) and r[n] > limits[n]
+            cells.append(f"{format(r[n], '.2f') + ('*' if over else ' '):>{w}}")
+        lines.append(f"{format(m, '+g') if m else '0':>8}{width:>9.1f}  " + "".join(cells))
+    return "\n".join(lines)
+
+
 def sweep_csv_text(table) -> str:
     """CSV text of a sweep table: columns :data:`SWEEP_COLUMNS`, no comment lines.
 
-    ``ok`` is written ``true``/``false`` and left empty (as ``limit``) for points
-    without a limit, like ``points.csv``.
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`sweep`.
+
+    Returns
+    -------
+    str
+        ``ok`` is written ``true``/``false`` and left empty (as ``limit``) for points
+        without a limit, like ``points.csv``; lengths in m, 6 significant digits.
+
+    References
+    ----------
+    .. [1] Shafranovich, Y. (2005). Common Format and MIME Type for Comma-Separated
+       Values (CSV) Files. IETF RFC 4180.
     """
     out = table.copy()
     out["ok"] = ["" if pd.isna(v) else ("true" if v else "false") for v in table["ok"]]
@@ -480,7 +567,18 @@ def write_sweep(table, out_dir):
 # --------------------------------------------------------------------------- command line
 
 def add_sweep_parser(subparsers):
-    """Add ``harbor sweep`` to the command's subparsers."""
+    """Add ``harbor sweep`` to the command's subparsers.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        From ``ArgumentParser.add_subparsers``.
+
+    Returns
+    -------
+    argparse.ArgumentParser
+        The ``sweep`` parser (its ``func`` default is :func:`cmd_sweep`).
+    """
     import argparse
 
     from harbor.cli import EPILOG_TAIL
@@ -490,12 +588,14 @@ def add_sweep_parser(subparsers):
         epilog=SWEEP_EXAMPLE + "\n" + EPILOG_TAIL,
         formatter_class=argparse.RawDescriptionHelpFormatter)
     sp.add_argument("scenario", help="scenario file (TOML)")
-    sp.add_argument("--arm", required=True, help="name of the arm whose free head moves")
+    sp.add_argument("--arm", required=True, metavar="NAME",
+                    help="name of the arm whose free head moves")
     sp.add_argument("--move", required=True, nargs=3, type=float,
                     metavar=("MIN", "MAX", "STEP"),
                     help="moves in metres along the end segment (positive lengthens)")
-    sp.add_argument("--sea", help="only this sea state (by name)")
-    sp.add_argument("--out", default="harbor-out", help="output folder (default harbor-out)")
+    sp.add_argument("--sea", metavar="NAME", help="only this sea state (by name)")
+    sp.add_argument("--out", default="harbor-out", metavar="DIR",
+                    help="output folder (default harbor-out)")
     sp.add_argument("--quiet", action="store_true", help="no progress bar")
     sp.add_argument("--method", choices=["auto", "general", "superposition", "exact"],
                     default="auto", help="force a method (default auto)")
@@ -504,7 +604,18 @@ def add_sweep_parser(subparsers):
 
 
 def cmd_sweep(args):
-    """Run ``harbor sweep``: parse, call :func:`sweep`, write, print."""
+    """Run ``harbor sweep``: call :func:`sweep`, write the CSV and PNG, print the table.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        From the parser of :func:`add_sweep_parser`.
+
+    Returns
+    -------
+    int
+        0; user mistakes raise :class:`harbor.errors.InputError`.
+    """
     from harbor.cli import _load, _progress_printer, _select_sea
 
     sc = _load(args.scenario)
@@ -522,6 +633,7 @@ def cmd_sweep(args):
     widths = table.groupby("move")["entrance_width"].first()
     print(f"{len(widths)} position(s) of the head of '{args.arm}', entrance width "
           f"{widths.min():.1f} to {widths.max():.1f} m")
+    print(sweep_text(table))
     print(verdict(table))
     print(f"wrote {', '.join(str(p) for p in written)}")
     if table.attrs["warnings"]:
