@@ -11,7 +11,6 @@ import json
 import math
 import os
 import sys
-import tempfile
 from importlib import resources
 
 from harbor import __version__
@@ -302,6 +301,179 @@ def cmd_diagram(args):
     return 0
 
 
+def add_sweep_parser(subparsers):
+    """Add ``harbor sweep`` to the command's subparsers.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        From ``ArgumentParser.add_subparsers``.
+
+    Returns
+    -------
+    argparse.ArgumentParser
+        The ``sweep`` parser (its ``func`` default is :func:`cmd_sweep`).
+    """
+    from harbor.study.sweep import SWEEP_EXAMPLE
+
+    sp = subparsers.add_parser(
+        "sweep", help="entrance-width sweep: move one head, heights at the points",
+        epilog=SWEEP_EXAMPLE + "\n" + EPILOG_TAIL,
+        formatter_class=argparse.RawDescriptionHelpFormatter)
+    sp.add_argument("scenario", help="scenario file (TOML)")
+    sp.add_argument("--arm", required=True, metavar="NAME",
+                    help="name of the arm whose free head moves")
+    sp.add_argument("--move", required=True, nargs=3, type=float,
+                    metavar=("MIN", "MAX", "STEP"),
+                    help="moves in metres along the end segment (positive lengthens)")
+    sp.add_argument("--sea", metavar="NAME", help="only this sea state (by name)")
+    sp.add_argument("--out", default="harbor-out", metavar="DIR",
+                    help="output folder (default harbor-out)")
+    sp.add_argument("--quiet", action="store_true", help="no progress bar")
+    sp.add_argument("--method", choices=["auto", "general", "superposition", "exact"],
+                    default="auto", help="force a method (default auto)")
+    sp.set_defaults(func=cmd_sweep)
+    return sp
+
+
+def cmd_sweep(args):
+    """Run ``harbor sweep``: call :func:`sweep`, write the CSV and PNG, print the table.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        From the parser of :func:`add_sweep_parser`.
+
+    Returns
+    -------
+    int
+        0; user mistakes raise :class:`harbor.errors.InputError`.
+    """
+    from harbor.study.sweep import find_arm, move_range, sweep, sweep_text, verdict, write_sweep
+
+    sc = _load(args.scenario)
+    sea = _select_sea(sc, args.sea)
+    moves = move_range(*args.move)
+    find_arm(sc, args.arm)
+    table = sweep(sc, args.arm, moves, sea=sea, method=args.method,
+                  progress=_progress_printer(args.quiet))
+    for m, why in table.attrs["skipped"]:
+        print(f"skipped move {m:+g} m: {why}")
+    if table.empty:
+        raise InputError("every move was skipped; nothing to write", file=sc.path,
+                         key="--move")
+    written = write_sweep(table, args.out)
+    widths = table.groupby("move")["entrance_width"].first()
+    print(f"{len(widths)} position(s) of the head of '{args.arm}', entrance width "
+          f"{widths.min():.1f} to {widths.max():.1f} m")
+    print(sweep_text(table))
+    print(verdict(table))
+    print(f"wrote {', '.join(str(p) for p in written)}")
+    if table.attrs["warnings"]:
+        print("warnings:")
+        for w in table.attrs["warnings"]:
+            print(f"  - {w}")
+    print(f"note: {CAUTION_SHORT}")
+    return 0
+
+
+def add_climate_parser(subparsers):
+    """Add ``harbor climate`` to the command's subparsers.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        From ``ArgumentParser.add_subparsers``.
+
+    Returns
+    -------
+    argparse.ArgumentParser
+        The ``climate`` parser (its ``func`` default is :func:`cmd_climate`).
+    """
+    from harbor.study.climate import CLIMATE_EXAMPLE
+
+    sp = subparsers.add_parser(
+        "climate", help="berth downtime (% of time above the limit) from a wave climate table",
+        epilog=CLIMATE_EXAMPLE + "\n" + EPILOG_TAIL,
+        formatter_class=argparse.RawDescriptionHelpFormatter)
+    sp.add_argument("scenario", help="scenario file (TOML); its points' limits are used")
+    sp.add_argument("--table", required=True, metavar="FILE",
+                    help="climate table (CSV: height,period,from,percent[,spreading])")
+    sp.add_argument("--arm", metavar="NAME",
+                    help="first move the free head of this arm (with --move)")
+    sp.add_argument("--move", type=float, metavar="METRES",
+                    help="distance to move that head along its end segment (positive "
+                         "lengthens)")
+    sp.add_argument("--out", default="harbor-out", metavar="DIR",
+                    help="output folder (default harbor-out)")
+    sp.add_argument("--workers", type=int, metavar="N",
+                    help="threads to use (default: one per core)")
+    sp.add_argument("--quiet", action="store_true", help="no progress bar")
+    sp.add_argument("--method", choices=["auto", "general", "superposition", "exact"],
+                    default="auto", help="force a method (default auto)")
+    sp.set_defaults(func=cmd_climate)
+    return sp
+
+
+def cmd_climate(args):
+    """Run ``harbor climate``: call :func:`climate_downtime`, write, print the table.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        From the parser of :func:`add_climate_parser`.
+
+    Returns
+    -------
+    int
+        0; user mistakes raise :class:`harbor.errors.InputError`.
+    """
+    from harbor.geometry.entrance import nearest_heads
+    from harbor.study.climate import (climate_downtime, downtime_text, percent_warning,
+                                      read_climate, write_climate)
+    from harbor.study.sweep import MoveRejected, move_head
+
+    sc = _load(args.scenario)
+    if (args.arm is None) != (args.move is None):
+        raise InputError("--arm and --move go together", key="--arm" if args.arm is None
+                         else "--move")
+    if args.workers is not None and args.workers < 1:
+        raise InputError(f"--workers must be at least 1, got {args.workers}", key="--workers")
+    table = read_climate(args.table)
+    pw = percent_warning(table)
+    if pw:
+        print(f"warning: {pw}")
+    title = None
+    if args.arm is not None:
+        try:
+            sc, width = move_head(sc, args.arm, args.move)
+        except MoveRejected as e:
+            raise InputError(f"cannot move the head of '{args.arm}' by {args.move:g} m: {e}",
+                             file=sc.path, key="--move") from None
+        print(f"head of '{args.arm}' moved {args.move:+g} m: entrance width {width:.1f} m")
+        title = f"Berth downtime, head of '{args.arm}' moved {args.move:+g} m " \
+                f"(entrance {width:.1f} m)"
+    else:
+        ent = nearest_heads(sc.layout)
+        if ent is not None:
+            print(f"entrance between the nearest heads: {ent.width:.1f} m")
+            title = f"Berth downtime by wave direction (entrance {ent.width:.1f} m)"
+    res = climate_downtime(sc, table, method=args.method, workers=args.workers,
+                           progress=_progress_printer(args.quiet))
+    written = write_climate(res, args.out, title=title)
+    print(f"{res.downtime.attrs['table_rows']} climate rows, "
+          f"{res.downtime.attrs['cases']} distinct (period, direction, spreading) cases")
+    print(downtime_text(res))
+    print(f"wrote {', '.join(str(p) for p in written)}")
+    other = [w for w in res.warnings if w != pw]
+    if other:
+        print("warnings:")
+        for w in other:
+            print(f"  - {w}")
+    print(f"note: {CAUTION_SHORT}")
+    return 0
+
+
 def build_parser():
     p = _Parser(prog="harbor",
                 description="Wave diffraction screening for harbour layouts: sheltering maps, berth "
@@ -367,6 +539,9 @@ def build_parser():
     sp.add_argument("--show", choices=["kd", "height"], default="kd", help="fill with K' or height")
     sp.add_argument("--quiet", action="store_true", help="no progress bar")
     sp.set_defaults(func=cmd_demo)
+
+    add_sweep_parser(sub)
+    add_climate_parser(sub)
     return p
 
 

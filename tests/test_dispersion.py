@@ -52,3 +52,21 @@ def test_vectorised_broadcast_and_scalar():
 def test_bad_values_raise(T, h):
     with pytest.raises(ValueError):
         harbor.wavenumber(T, h)
+
+
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+
+@settings(max_examples=200, deadline=None)
+@given(T=st.floats(0.5, 40.0), h=st.floats(0.01, 5000.0))
+def test_phase_speed_bounded_by_shallow_and_deep_limits(T, h):
+    # Linear theory (common practice): c = L/T never exceeds the shallow-water speed
+    # sqrt(g h) nor the deep-water speed g T / (2 pi), and the relation holds to
+    # machine precision everywhere in between.
+    k = harbor.wavenumber(T, h)
+    c = 2 * np.pi / k / T
+    assert c <= np.sqrt(G * h) * (1 + 1e-12)
+    assert c <= G * T / (2 * np.pi) * (1 + 1e-12)
+    w = 2 * np.pi / T
+    assert G * k * np.tanh(k * h) == pytest.approx(w**2, rel=1e-13)

@@ -22,6 +22,7 @@ from matplotlib.figure import Figure
 from matplotlib.lines import Line2D
 from matplotlib.patches import Circle, Patch, PathPatch, Polygon as MplPolygon, Rectangle
 from matplotlib.path import Path as MplPath
+from matplotlib.text import Text
 
 from harbor.cautions import CAUTION_SHORT
 from harbor.errors import InputError
@@ -31,8 +32,13 @@ from harbor.outputs._atomic import atomic_path
 # readable with the common colour-vision deficiencies); everything drawn over it is
 # either very dark with a white halo or white, so it stays visible on both ends.
 CMAP = "cividis"
-LAND_FACE = "#e6dcc3"
-LAND_EDGE = "#8c7e5f"
+# Land is a very light neutral grey under a fine diagonal hatch: no class of the colour
+# map is that light and unsaturated (cividis runs from dark blue through mid grey to
+# yellow), and the hatch tells land from water even in a grey-scale copy.
+LAND_FACE = "#efefed"
+LAND_HATCH = "#9d9d9d"
+LAND_EDGE = "#4d4d4d"
+LAND_HATCH_STYLE = "//////"
 ARM_COLOUR = "#161616"
 INK = "#222222"
 MUTED = "#555555"
@@ -41,6 +47,15 @@ OVER_COLOUR = "#b3261e"
 A4_LANDSCAPE = (11.69, 8.27)  # inches
 
 _HALO = [patheffects.withStroke(linewidth=3.0, foreground="white")]
+
+
+def _land_hatch() -> dict:
+    """Patch keywords of the land hatch; matplotlib < 3.10 takes the hatch colour from
+    the edge colour, so the hatch patch then gets the hatch colour as its (zero-width)
+    edge."""
+    if hasattr(Patch, "set_hatchcolor"):
+        return dict(hatch=LAND_HATCH_STYLE, hatchcolor=LAND_HATCH)
+    return dict(hatch=LAND_HATCH_STYLE, edgecolor=LAND_HATCH)
 
 
 # --------------------------------------------------------------------------- result reading
@@ -172,28 +187,36 @@ def nice_step(span: float, target: int = 5) -> float:
     return 10.0 ** (exp + 1)
 
 
+KD_FILL = np.round(np.concatenate([np.arange(0.0, 1.0001, 0.1), np.arange(1.25, 2.0001, 0.25)]),
+                   10)
+"""Fill classes of K': 0.1 steps to 1 (K' = 1 is the incident height), then 0.25 steps to 2.
+
+Fixed, so that a given K' has the same colour on every map, sheet and diagram."""
+KD_LINES = np.round(np.arange(0.1, 0.9001, 0.1), 10)
+"""K' isolines drawn on maps and diagrams: the sheltered range only (0.1 ... 0.9)."""
+
+
 def fill_levels(values: np.ndarray, show: str, sea_height: float):
     """Filled-contour levels, line levels and whether the top end is open.
 
-    K' uses 0.1 steps from 0 to 1 (K' = 1 is the incident height); values above 1
-    (reflection in front of arms) get 0.25 steps up to the maximum. Heights use a round
-    step.
+    K' uses the fixed classes :data:`KD_FILL` (0.1 steps from 0 to 1, 0.25 steps from 1
+    to 2; values above 2 fall in an open top class) and isolines at 0.1 ... 0.9 only:
+    above 0.9 the field of the open sea undulates about 1 (reflection, Fresnel ripples)
+    and isolines there are clutter, not information. Heights use a round step.
     """
     finite = values[np.isfinite(values)]
     vmax = float(finite.max()) if finite.size else 1.0
     if show == "kd":
-        base = np.round(np.arange(0.0, 1.0001, 0.1), 10)
-        top = min(max(1.0, math.ceil(vmax * 4) / 4), 2.0)
-        extra = np.round(np.arange(1.25, top + 1e-9, 0.25), 10)
-        fill = np.concatenate([base, extra])
-        lines = np.round(np.arange(0.1, 1.0001, 0.1), 10)
-        lines = np.concatenate([lines, extra[extra < fill[-1]]])
-        return fill, lines, vmax > fill[-1] + 1e-9
+        return KD_FILL.copy(), KD_LINES.copy(), vmax > KD_FILL[-1] + 1e-9
     hmax = max(vmax, sea_height if np.isfinite(sea_height) else 0.0, 1e-3)
     step = nice_step(hmax, 10)
     top = step * math.ceil(hmax / step - 1e-9)
     fill = np.round(np.arange(0.0, top + step / 2, step), 10)
-    return fill, fill[1:-1] if fill.size > 2 else fill, False
+    lines = fill[1:-1] if fill.size > 2 else fill
+    if np.isfinite(sea_height) and sea_height > 0:
+        # As for K': no isolines at or above 0.95 of the incident height.
+        lines = lines[lines < 0.95 * sea_height] if np.any(lines < 0.95 * sea_height) else lines
+    return fill, lines, False
 
 
 # --------------------------------------------------------------------------- layout
@@ -459,6 +482,47 @@ def busy_mask(field, x, y, wavelength, threshold) -> np.ndarray:
     return np.isfinite(hi - lo) & (hi - lo > threshold)
 
 
+def open_sea_mask(field, x, y, wavelength, ceiling) -> np.ndarray:
+    """Nodes in the open, unsheltered sea: where the field reaches ``ceiling`` within
+    one wavelength.
+
+    Parameters
+    ----------
+    field : numpy.ndarray (ny, nx)
+        K' or height; NaN on land.
+    x, y : numpy.ndarray
+        Node coordinates (m).
+    wavelength : float
+        L (m) of the sea state, read from the result; NaN disables the mask.
+    ceiling : float
+        K' = 1 (or the incident height, m): the level of the undisturbed sea.
+
+    Returns
+    -------
+    numpy.ndarray of bool
+
+    Notes
+    -----
+    Seaward of the arms the field undulates about K' = 1 (partial standing waves of the
+    reflected sea, Fresnel ripples along the shadow boundaries, the directional
+    quadrature of a random sea), and isolines of 0.8 or 0.9 there are scattered loops
+    that read as noise. A node whose neighbourhood of one wavelength reaches the
+    undisturbed level is taken as open sea; its isolines are left out while the colour
+    fill still shows every value (cartographic generalisation: the exports keep every
+    isoline). Sheltered water, whose K' stays below 1 over a wavelength, keeps its
+    isolines.
+    """
+    f = np.asarray(field, float)
+    h = _cell(x, y)
+    if not (np.isfinite(wavelength) and wavelength > 0 and h > 0) or f.size == 0:
+        return np.zeros(f.shape, bool)
+    from scipy import ndimage
+
+    n = max(3, int(round(wavelength / h)) | 1)
+    hi = ndimage.maximum_filter(np.where(np.isnan(f), -np.inf, f), size=n, mode="nearest")
+    return hi >= ceiling
+
+
 def _drop_specks(cs, min_size: float):
     """Remove contour pieces smaller than ``min_size`` (m) across: closed specks where
     a noisy field just touches a level (K' = 1.0 in open water) carry no information."""
@@ -561,7 +625,8 @@ def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fonts
     line_colours = [ink_for(v) for v in lines]
     scale_h = 1.0 if show == "kd" else (info["height"] if np.isfinite(info["height"]) else 1.0)
     busy = busy_mask(field, x, y, info["wavelength"], 0.6 * scale_h)
-    line_field = np.where(arm_mask(x, y, scenario) | busy, np.nan, field)
+    open_sea = open_sea_mask(field, x, y, info["wavelength"], 1.0 * scale_h)
+    line_field = np.where(arm_mask(x, y, scenario) | busy | open_sea, np.nan, field)
     cs = ax.contour(x, y, line_field, levels=lines, colors=line_colours, linewidths=0.7, zorder=2)
     _drop_specks(cs, 2.5 * _cell(x, y))
     if show == "kd":
@@ -582,10 +647,13 @@ def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fonts
     handles = []
     if layout is not None:
         for land in getattr(layout, "lands", ()):
-            p = _polygon_patch(land.outline, facecolor=LAND_FACE, edgecolor=LAND_EDGE,
-                               linewidth=0.9, zorder=5)
+            # Two patches: the hatch takes its own (lighter) colour, the outline a darker one.
+            kw = {"edgecolor": "none", **_land_hatch()}
+            p = _polygon_patch(land.outline, facecolor=LAND_FACE, linewidth=0.0, zorder=5, **kw)
             if p is not None:
                 ax.add_patch(p)
+                ax.add_patch(_polygon_patch(land.outline, fill=False, edgecolor=LAND_EDGE,
+                                            linewidth=0.9, zorder=5.1))
         # The field jumps across an arm but is contoured between grid nodes, so a band
         # one cell wide on each side of the arm shows squeezed isolines that mean
         # nothing; the white casing of the arm covers that band.
@@ -601,7 +669,8 @@ def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fonts
                 ax.plot(tip[0], tip[1], marker="o", markersize=7, markerfacecolor=ARM_COLOUR,
                         markeredgecolor="white", markeredgewidth=1.4, zorder=8)
         if getattr(layout, "lands", ()):
-            handles.append(Patch(facecolor=LAND_FACE, edgecolor=LAND_EDGE, label="land"))
+            handles.append(Patch(facecolor=LAND_FACE, linewidth=0.8, label="land",
+                                 **{**_land_hatch(), "edgecolor": LAND_EDGE}))
         if getattr(layout, "arms", ()):
             handles.append(Line2D([], [], color=ARM_COLOUR, lw=3.2, label="breakwater arm",
                                   path_effects=[patheffects.withStroke(linewidth=5.4,
@@ -677,19 +746,26 @@ def _draw_points(fig, ax, result, scenario, name, info, obstacles, fontsize):
     ax_box = ax.get_window_extent(renderer)
     placed = [o.get_window_extent(renderer) for o in obstacles]
     placed += [m.get_window_extent(renderer).expanded(1.1, 1.1) for m in markers]
-    # Labels should not hide the structures: sample the arms every few points as small
-    # obstacles (weighted as much as another label).
+    # Labels must not hide the structures: sample the arms densely as small obstacles
+    # that weigh much more than another label, so a label crosses an arm only when no
+    # other place is left.
+    px = fig.dpi / 72.0
+    arm_boxes = []
     layout = getattr(scenario, "layout", None) if scenario is not None else None
     for arm in getattr(layout, "arms", ()):
         xy = ax.transData.transform(np.asarray(arm.line, float))
         for p0, p1 in zip(xy[:-1], xy[1:]):
-            n = max(2, int(np.hypot(*(p1 - p0)) / 6.0))
+            n = max(2, int(np.hypot(*(p1 - p0)) / (3.0 * px)) + 1)
             for t in np.linspace(0.0, 1.0, n):
                 cx, cy = p0 + t * (p1 - p0)
-                placed.append(transforms.Bbox([[cx - 4, cy - 4], [cx + 4, cy + 4]]))
-    candidates = [(9, 7, "left", "bottom"), (9, -7, "left", "top"), (-9, 7, "right", "bottom"),
-                  (-9, -7, "right", "top"), (0, 11, "center", "bottom"),
-                  (0, -11, "center", "top"), (14, 0, "left", "center"), (-14, 0, "right", "center")]
+                arm_boxes.append(transforms.Bbox([[cx - 3 * px, cy - 3 * px],
+                                                  [cx + 3 * px, cy + 3 * px]]))
+    near = [(9, 7, "left", "bottom"), (9, -7, "left", "top"), (-9, 7, "right", "bottom"),
+            (-9, -7, "right", "top"), (0, 11, "center", "bottom"),
+            (0, -11, "center", "top"), (14, 0, "left", "center"), (-14, 0, "right", "center")]
+    # A second ring, twice as far, with a thin leader line back to the point.
+    far = [(2 * dx, 2 * dy, ha, va) for dx, dy, ha, va in near]
+    candidates = [(c, False) for c in near] + [(c, True) for c in far]
     for row in rows:
         if not np.isfinite(row["height"]):
             val = "no value (on land or outside the grid)"
@@ -702,20 +778,25 @@ def _draw_points(fig, ax, result, scenario, name, info, obstacles, fontsize):
         text = f"{row['name']}\n{val}"
         colour = {True: OK_COLOUR, False: OVER_COLOUR, None: INK}[row["ok"]]
         best, best_score = None, None
-        for dx, dy, ha, va in candidates:
+        for (dx, dy, ha, va), leader in candidates:
             t = ax.annotate(text, (row["x"], row["y"]), xytext=(dx, dy), textcoords="offset points",
                             ha=ha, va=va, fontsize=fontsize, color=colour, zorder=14,
                             annotation_clip=False, linespacing=1.15,
                             bbox=dict(boxstyle="round,pad=0.25", facecolor="white",
-                                      edgecolor=colour, linewidth=0.6, alpha=0.9))
+                                      edgecolor=colour, linewidth=0.6, alpha=0.9),
+                            arrowprops=(dict(arrowstyle="-", color=colour, lw=0.6,
+                                             shrinkA=0, shrinkB=4) if leader else None))
             # The text extent excludes its rounded box (pad 0.25 em) and a little air.
-            bb = t.get_window_extent(renderer).padded(
-                (0.25 * fontsize + 1.5) * fig.dpi / 72.0)
+            # (Text's extent, not the Annotation's, which would include the leader line.)
+            bb = Text.get_window_extent(t, renderer).padded((0.25 * fontsize + 1.5) * px)
             score = sum(_overlap(bb, p) for p in placed)
+            score += 40.0 * sum(_overlap(bb, p) for p in arm_boxes)
             # Leaving the map frame is worse than touching another label.
             outside = max(0, ax_box.x0 - bb.x0) + max(0, bb.x1 - ax_box.x1) \
                 + max(0, ax_box.y0 - bb.y0) + max(0, bb.y1 - ax_box.y1)
             score += 4 * outside * bb.height
+            # A far place must buy a real improvement: a leader line costs a little.
+            score += (0.05 * bb.width * bb.height) if leader else 0.0
             if best_score is None or score < best_score - 1e-9:
                 if best is not None:
                     best[0].remove()

@@ -299,35 +299,10 @@ def _solve_case(scenario, method, case, name):
 
 
 def _threads_safe() -> bool:
-    """Whether the compiled kernels may run in several threads at once.
-
-    Numba's OpenMP and TBB threading layers accept parallel regions launched from
-    several threads at once; its fallback "workqueue" layer aborts on them. The layer
-    in use is known once a parallel kernel has run; before that, the one Numba will
-    pick is the first of TBB, OpenMP, workqueue that loads (unless configured).
-    """
-    try:
-        import numba
-    except ImportError:  # pure numpy kernels
-        return True
-    try:
-        return numba.threading_layer() in ("omp", "tbb")
-    except ValueError:  # no parallel kernel has run yet
-        pass
-    layer = str(numba.config.THREADING_LAYER).lower()
-    if layer in ("omp", "tbb", "threadsafe", "safe"):
-        return True
-    if layer != "default":
-        return False
-    import importlib
-
-    for mod in ("numba.np.ufunc.tbbpool", "numba.np.ufunc.omppool"):
-        try:
-            importlib.import_module(mod)
-            return True
-        except Exception:  # noqa: BLE001 - a missing shared library raises OSError/ImportError
-            continue
-    return False
+    """Whether the solver may run in several threads at once: its compiled kernels release
+    the GIL and hold no thread pool of their own, and its LAPACK calls are serialised
+    (harbor.solver.kernels.gap), so it may."""
+    return True
 
 
 def _run_cases(scenario, cases, method, workers, progress):
@@ -682,103 +657,3 @@ def write_climate(result, out_dir, title=None):
         plot_downtime(result, stage / files[2], title=title)
         staged.append(files[2])
     return [Path(out_dir) / f for f in files]
-
-
-# --------------------------------------------------------------------------- command line
-
-def add_climate_parser(subparsers):
-    """Add ``harbor climate`` to the command's subparsers.
-
-    Parameters
-    ----------
-    subparsers : argparse._SubParsersAction
-        From ``ArgumentParser.add_subparsers``.
-
-    Returns
-    -------
-    argparse.ArgumentParser
-        The ``climate`` parser (its ``func`` default is :func:`cmd_climate`).
-    """
-    import argparse
-
-    from harbor.cli import EPILOG_TAIL
-
-    sp = subparsers.add_parser(
-        "climate", help="berth downtime (% of time above the limit) from a wave climate table",
-        epilog=CLIMATE_EXAMPLE + "\n" + EPILOG_TAIL,
-        formatter_class=argparse.RawDescriptionHelpFormatter)
-    sp.add_argument("scenario", help="scenario file (TOML); its points' limits are used")
-    sp.add_argument("--table", required=True, metavar="FILE",
-                    help="climate table (CSV: height,period,from,percent[,spreading])")
-    sp.add_argument("--arm", metavar="NAME",
-                    help="first move the free head of this arm (with --move)")
-    sp.add_argument("--move", type=float, metavar="METRES",
-                    help="distance to move that head along its end segment (positive "
-                         "lengthens)")
-    sp.add_argument("--out", default="harbor-out", metavar="DIR",
-                    help="output folder (default harbor-out)")
-    sp.add_argument("--workers", type=int, metavar="N",
-                    help="threads to use (default: one per core)")
-    sp.add_argument("--quiet", action="store_true", help="no progress bar")
-    sp.add_argument("--method", choices=["auto", "general", "superposition", "exact"],
-                    default="auto", help="force a method (default auto)")
-    sp.set_defaults(func=cmd_climate)
-    return sp
-
-
-def cmd_climate(args):
-    """Run ``harbor climate``: call :func:`climate_downtime`, write, print the table.
-
-    Parameters
-    ----------
-    args : argparse.Namespace
-        From the parser of :func:`add_climate_parser`.
-
-    Returns
-    -------
-    int
-        0; user mistakes raise :class:`harbor.errors.InputError`.
-    """
-    from harbor.cli import _load, _progress_printer
-    from harbor.geometry.entrance import nearest_heads
-    from harbor.study.sweep import MoveRejected, move_head
-
-    sc = _load(args.scenario)
-    if (args.arm is None) != (args.move is None):
-        raise InputError("--arm and --move go together", key="--arm" if args.arm is None
-                         else "--move")
-    if args.workers is not None and args.workers < 1:
-        raise InputError(f"--workers must be at least 1, got {args.workers}", key="--workers")
-    table = read_climate(args.table)
-    pw = percent_warning(table)
-    if pw:
-        print(f"warning: {pw}")
-    title = None
-    if args.arm is not None:
-        try:
-            sc, width = move_head(sc, args.arm, args.move)
-        except MoveRejected as e:
-            raise InputError(f"cannot move the head of '{args.arm}' by {args.move:g} m: {e}",
-                             file=sc.path, key="--move") from None
-        print(f"head of '{args.arm}' moved {args.move:+g} m: entrance width {width:.1f} m")
-        title = f"Berth downtime, head of '{args.arm}' moved {args.move:+g} m " \
-                f"(entrance {width:.1f} m)"
-    else:
-        ent = nearest_heads(sc.layout)
-        if ent is not None:
-            print(f"entrance between the nearest heads: {ent.width:.1f} m")
-            title = f"Berth downtime by wave direction (entrance {ent.width:.1f} m)"
-    res = climate_downtime(sc, table, method=args.method, workers=args.workers,
-                           progress=_progress_printer(args.quiet))
-    written = write_climate(res, args.out, title=title)
-    print(f"{res.downtime.attrs['table_rows']} climate rows, "
-          f"{res.downtime.attrs['cases']} distinct (period, direction, spreading) cases")
-    print(downtime_text(res))
-    print(f"wrote {', '.join(str(p) for p in written)}")
-    other = [w for w in res.warnings if w != pw]
-    if other:
-        print("warnings:")
-        for w in other:
-            print(f"  - {w}")
-    print(f"note: {CAUTION_SHORT}")
-    return 0

@@ -87,7 +87,7 @@ def _build_table(n=_N_TABLE):
     der[0] = np.exp(0.25j * np.pi) / (2.0 * np.sqrt(np.pi))
     # For u -> 0 the product t*val is finite: recompute from the asymptotic derivative.
     fin_big = big & np.isfinite(t)
-    tt = t[fin_big]
+
     # d/du of A(1/u - 1): exact derivative expression is ill-conditioned for huge t; use the
     # asymptotic series differentiated numerically in u instead.
     uu = u[fin_big]
