@@ -788,6 +788,7 @@ def _draw_points(fig, ax, result, scenario, name, info, obstacles, fontsize):
                                              shrinkA=0, shrinkB=4) if leader else None))
             # The text extent excludes its rounded box (pad 0.25 em) and a little air.
             # (Text's extent, not the Annotation's, which would include the leader line.)
+            t.update_positions(renderer)
             bb = Text.get_window_extent(t, renderer).padded((0.25 * fontsize + 1.5) * px)
             score = sum(_overlap(bb, p) for p in placed)
             score += 40.0 * sum(_overlap(bb, p) for p in arm_boxes)
