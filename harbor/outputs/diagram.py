@@ -20,8 +20,8 @@ from matplotlib.patches import Circle, FancyArrowPatch
 from harbor.cautions import CAUTION_SHORT
 from harbor.errors import InputError
 from harbor.outputs._atomic import atomic_path
-from harbor.outputs.maps import (ARM_COLOUR, CMAP, INK, MUTED, A4_LANDSCAPE, fit_axes_rect,
-                                 new_figure)
+from harbor.outputs.maps import (ARM_COLOUR, CMAP, INK, KD_FILL, KD_LINES, MUTED, A4_LANDSCAPE,
+                                 fit_axes_rect, new_figure, wrap_to)
 
 CREST_COLOUR = "#e8590c"
 
@@ -151,13 +151,12 @@ def plot_diagram(ds, path):
 
     fig = new_figure(A4_LANDSCAPE)
     fw, fh = fig.get_size_inches()
-    ax, _ = fit_axes_rect(fig, (0.85, 1.05, fw - 0.85 - 2.7, fh - 1.05 - 1.15),
+    ax, _ = fit_axes_rect(fig, (0.85, 1.05, fw - 0.85 - 2.7, fh - 1.05 - 1.3),
                           (x.min(), x.max()), (y.min(), y.max()))
 
     finite = kd[np.isfinite(kd)]
-    top = min(max(1.0, math.ceil((finite.max() if finite.size else 1.0) * 4) / 4), 2.0)
-    fill = np.round(np.concatenate([np.arange(0.0, 1.0001, 0.1),
-                                    np.arange(1.25, top + 1e-9, 0.25)]), 10)
+    # The same fixed classes as the maps, so a colour means the same K' everywhere.
+    fill = KD_FILL.copy()
     cmap = mpl.colormaps[CMAP]
     extend = "max" if finite.size and finite.max() > fill[-1] + 1e-9 else "neither"
     norm = mcolors.BoundaryNorm(fill, cmap.N, extend=extend)
@@ -166,7 +165,9 @@ def plot_diagram(ds, path):
     # Isolines in the lee only: in front of a reflecting barrier a regular sea makes a
     # standing pattern (K' from 0 to 2 every half wavelength) whose 0.1-step isolines
     # would bury the diagram; the colour fill still shows it.
-    lines = np.round(np.arange(0.1, 1.0001, 0.1), 10)
+    # 0.1 ... 0.9: the K' = 1 line of the lit zone only traces small ripples about the
+    # undisturbed level (and, for a random sea, the noise of the directional quadrature).
+    lines = KD_LINES.copy()
     # Nodes on the barrier itself carry the jump from the front to the lee; leaving
     # them out keeps isolines (and their labels) from running along the barrier.
     on_barrier = np.zeros(kd.shape, bool)
@@ -181,7 +182,7 @@ def plot_diagram(ds, path):
         t.set_path_effects([patheffects.withStroke(linewidth=2.2, foreground="white")])
         t.set_zorder(4)
 
-    handles = [Line2D([], [], color=INK, lw=0.75, label="K' isoline, 0.1 steps (lee, y > 0)")]
+    handles = [Line2D([], [], color=INK, lw=0.75, label="K' isoline, 0.1 ... 0.9 (lee, y > 0)")]
     if not random and "phase" in ds:
         ph = np.asarray(ds["phase"].transpose("y_over_l", "x_over_l").values
                         if set(ds["phase"].dims) == {"y_over_l", "x_over_l"}
@@ -229,9 +230,10 @@ def plot_diagram(ds, path):
     if random and "spreading" in ds.attrs:
         sub += f", s_max = {float(ds.attrs['spreading']):g}"
     fig.text(0.85 / fw, 1 - 0.62 / fh, sub, fontsize=10, color=INK, va="top")
-    fig.text(0.85 / fw, 1 - 0.86 / fh, f"Method: {ds.attrs.get('method', '')}. "
-             "Distances in wavelengths L (at the period and depth of the sea state).",
-             fontsize=8.5, color=MUTED, va="top")
+    method = (f"Method: {ds.attrs.get('method', '')}. Distances in wavelengths L (at the "
+              + ("significant period" if random else "period") + " and depth of the sea state).")
+    fig.text(0.85 / fw, 1 - 0.86 / fh, "\n".join(wrap_to(method, fw - 0.85 - 0.5, 8.5)[:2]),
+             fontsize=8.5, color=MUTED, va="top", linespacing=1.2)
     fig.add_artist(Line2D([0.85 / fw, 1 - 0.5 / fw], [0.62 / fh, 0.62 / fh], color="#bbbbbb",
                           lw=0.6))
     version = ds.attrs.get("harbor_version", "")

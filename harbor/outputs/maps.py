@@ -221,7 +221,7 @@ def fill_levels(values: np.ndarray, show: str, sea_height: float):
 
 # --------------------------------------------------------------------------- layout
 
-def fit_axes_rect(fig, box, xlim, ylim, scale=None, halign="left"):
+def fit_axes_rect(fig, box, xlim, ylim, scale=None, halign="left", valign="top"):
     """Place an axes of equal aspect inside ``box`` (inches) and return it.
 
     Parameters
@@ -235,12 +235,14 @@ def fit_axes_rect(fig, box, xlim, ylim, scale=None, halign="left"):
         If given, print at exactly 1:scale (metres of ground per metre of paper); the
         axes may then be smaller than ``box``. Otherwise the largest equal-aspect box.
     halign : {"left", "center"}
-        Horizontal placement of the axes inside ``box`` (always top-aligned).
+        Horizontal placement of the axes inside ``box``.
+    valign : {"top", "center"}
+        Vertical placement of the axes inside ``box``.
 
     Returns
     -------
     (matplotlib.axes.Axes, float)
-        The axes (top-left aligned in ``box``) and the printed scale denominator.
+        The axes (placed in ``box`` as asked) and the printed scale denominator.
     """
     left, bottom, width, height = box
     dx, dy = xlim[1] - xlim[0], ylim[1] - ylim[0]
@@ -252,7 +254,8 @@ def fit_axes_rect(fig, box, xlim, ylim, scale=None, halign="left"):
     fw, fh = fig.get_size_inches()
     if halign == "center":
         left += max(0.0, (width - w) / 2)
-    rect = (left / fw, (bottom + height - h) / fh, w / fw, h / fh)
+    top = bottom + height - (max(0.0, (height - h) / 2) if valign == "center" else 0.0)
+    rect = (left / fw, (top - h) / fh, w / fw, h / fh)
     ax = fig.add_axes(rect)
     ax.set_xlim(*xlim)
     ax.set_ylim(*ylim)
@@ -570,7 +573,7 @@ def _bleed(field: np.ndarray, cells: int = 2) -> np.ndarray:
 
 
 def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fontsize=7.5,
-             halign="left"):
+             halign="left", valign="top"):
     """Draw the sheltering map of one sea state into ``fig``.
 
     Parameters
@@ -590,15 +593,16 @@ def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fonts
         Print scale denominator (see :func:`fit_axes_rect`).
     label_fontsize : float
         Point-label size (pt).
-    halign : {"left", "center"}
-        Placement of the map in ``box``.
+    halign, valign : str
+        Placement of the map in ``box`` (see :func:`fit_axes_rect`).
 
     Returns
     -------
     dict
         ``ax``, ``mappable`` (for the colour bar), ``label`` (colour-bar label),
         ``scale`` (printed scale denominator), ``info`` (sea attributes), ``levels``,
-        ``extend``, ``obstacles`` (artists labels must avoid).
+        ``extend``, ``handles`` (legend entries), ``name`` (sea state) and ``points``
+        (:func:`point_rows`, for :func:`draw_point_table`).
     """
     name = sea_name(result, sea)
     info = sea_info(result, name)
@@ -608,7 +612,7 @@ def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fonts
     y = np.asarray(result["y"].values, float)
     xlim, ylim = (x.min(), x.max()), (y.min(), y.max())
 
-    ax, denom = fit_axes_rect(fig, box, xlim, ylim, scale, halign)
+    ax, denom = fit_axes_rect(fig, box, xlim, ylim, scale, halign, valign)
     ax.set_facecolor("#f2f2f2")
     fill, lines, open_top = fill_levels(field, show, info["height"])
     field = _bleed(field)
@@ -695,7 +699,8 @@ def draw_map(fig, box, result, scenario, sea, show="kd", scale=None, label_fonts
                                  label_fontsize)
     handles.extend(point_handles)
     return {"ax": ax, "mappable": cf, "label": cbar_label, "scale": denom, "info": info,
-            "levels": fill, "extend": extend, "handles": handles, "name": name}
+            "levels": fill, "extend": extend, "handles": handles, "name": name,
+            "points": point_rows(result, scenario, name)}
 
 
 def point_rows(result, scenario, name):
@@ -745,7 +750,10 @@ def _draw_points(fig, ax, result, scenario, name, info, obstacles, fontsize):
     renderer = canvas.get_renderer()
     ax_box = ax.get_window_extent(renderer)
     placed = [o.get_window_extent(renderer) for o in obstacles]
-    placed += [m.get_window_extent(renderer).expanded(1.1, 1.1) for m in markers]
+    # Markers weigh as much as the arms: a label must never hide a point.
+    # Another point's marker keeps a wider berth, so no label sits beside the wrong point.
+    own_boxes = [m.get_window_extent(renderer).expanded(1.3, 1.3) for m in markers]
+    other_boxes = [m.get_window_extent(renderer).expanded(3.0, 3.0) for m in markers]
     # Labels must not hide the structures: sample the arms densely as small obstacles
     # that weigh much more than another label, so a label crosses an arm only when no
     # other place is left.
@@ -763,18 +771,18 @@ def _draw_points(fig, ax, result, scenario, name, info, obstacles, fontsize):
     near = [(9, 7, "left", "bottom"), (9, -7, "left", "top"), (-9, 7, "right", "bottom"),
             (-9, -7, "right", "top"), (0, 11, "center", "bottom"),
             (0, -11, "center", "top"), (14, 0, "left", "center"), (-14, 0, "right", "center")]
-    # A second ring, twice as far, with a thin leader line back to the point.
-    far = [(2 * dx, 2 * dy, ha, va) for dx, dy, ha, va in near]
+    # Farther rings, with a thin leader line back to the point.
+    far = [(f * dx, f * dy, ha, va) for f in (2.0, 3.5) for dx, dy, ha, va in near]
     candidates = [(c, False) for c in near] + [(c, True) for c in far]
-    for row in rows:
+    # The label carries the name and the height; the limit and the verdict are in the
+    # marker (and in the point table beside the map), which keeps labels short enough
+    # to fit a small basin.
+    for i, row in enumerate(rows):
+        marker_boxes = [own_boxes[j] if j == i else other_boxes[j] for j in range(len(rows))]
         if not np.isfinite(row["height"]):
-            val = "no value (on land or outside the grid)"
+            val = "no value (land / off grid)"
         else:
             val = f"{hs} = {row['height']:.2f} m"
-            if row["ok"] is True:
-                val += f", limit {row['limit']:.2f} m: ok"
-            elif row["ok"] is False:
-                val += f", limit {row['limit']:.2f} m: OVER"
         text = f"{row['name']}\n{val}"
         colour = {True: OK_COLOUR, False: OVER_COLOUR, None: INK}[row["ok"]]
         best, best_score = None, None
@@ -784,20 +792,22 @@ def _draw_points(fig, ax, result, scenario, name, info, obstacles, fontsize):
                             annotation_clip=False, linespacing=1.15,
                             bbox=dict(boxstyle="round,pad=0.25", facecolor="white",
                                       edgecolor=colour, linewidth=0.6, alpha=0.9),
-                            arrowprops=(dict(arrowstyle="-", color=colour, lw=0.6,
-                                             shrinkA=0, shrinkB=4) if leader else None))
+                            arrowprops=(dict(arrowstyle="-", color=colour, lw=0.9,
+                                             shrinkA=0, shrinkB=4, path_effects=_HALO)
+                                        if leader else None))
             # The text extent excludes its rounded box (pad 0.25 em) and a little air.
             # (Text's extent, not the Annotation's, which would include the leader line.)
             t.update_positions(renderer)
             bb = Text.get_window_extent(t, renderer).padded((0.25 * fontsize + 1.5) * px)
             score = sum(_overlap(bb, p) for p in placed)
-            score += 40.0 * sum(_overlap(bb, p) for p in arm_boxes)
+            score += 40.0 * sum(_overlap(bb, p) for p in arm_boxes + marker_boxes)
             # Leaving the map frame is worse than touching another label.
             outside = max(0, ax_box.x0 - bb.x0) + max(0, bb.x1 - ax_box.x1) \
                 + max(0, ax_box.y0 - bb.y0) + max(0, bb.y1 - ax_box.y1)
             score += 4 * outside * bb.height
             # A far place must buy a real improvement: a leader line costs a little.
-            score += (0.05 * bb.width * bb.height) if leader else 0.0
+            score += (0.02 * abs(dx) + 0.02 * abs(dy)) * bb.width * bb.height / 10.0 \
+                if leader else 0.0
             if best_score is None or score < best_score - 1e-9:
                 if best is not None:
                     best[0].remove()
@@ -853,6 +863,75 @@ def draw_legend(fig, drawn, anchor, fontsize=7.5):
                       bbox_to_anchor=(anchor[0] / fw, anchor[1] / fh), fontsize=fontsize,
                       frameon=False, title="Key", title_fontsize=fontsize + 0.5,
                       alignment="left", handlelength=2.2, borderaxespad=0.0)
+
+
+def draw_point_table(fig, drawn, anchor, width, fontsize=7.5, max_rows=None):
+    """Tabulate the points of a drawn map: name, height, limit and verdict.
+
+    Parameters
+    ----------
+    fig : matplotlib.figure.Figure
+    drawn : dict
+        Returned by :func:`draw_map`.
+    anchor : (float, float)
+        Upper-left corner, inches from the figure's lower-left corner.
+    width : float
+        Width available, inches; long names are shortened to fit.
+    fontsize : float
+        Text size, pt.
+    max_rows : int, optional
+        Rows to show at most; the rest are counted in a last line.
+
+    Returns
+    -------
+    float
+        Height used, inches (0 when the map has no points).
+    """
+    rows = drawn.get("points") or []
+    if not rows:
+        return 0.0
+    fw, fh = fig.get_size_inches()
+    width = min(width, 3.0)  # a wider table only separates a name from its values
+    random = drawn["info"]["random"]
+    hs = "H1/3" if random else "H"
+    line_h = fontsize * 1.45 / 72.0
+    em = fontsize / 72.0
+    # Right-aligned number columns at fixed widths; the name takes what is left.
+    cols = [("height", f"{hs} [m]", 5.2 * em), ("limit", "limit [m]", 5.4 * em),
+            ("ok", "", 4.2 * em)]
+    name_w = max(0.6, width - sum(c[2] for c in cols))
+    name_chars = max(6, int(name_w / (0.55 * em)) - 1)
+    x0, y = anchor
+    fig.text(x0 / fw, y / fh, "Points", fontsize=fontsize + 0.5, color=INK, va="top")
+    y -= (fontsize + 0.5) * 1.6 / 72.0
+
+    def put(values, colour=INK, weight="normal"):
+        fig.text(x0 / fw, y / fh, values[0], fontsize=fontsize, color=colour, va="top",
+                 fontweight=weight)
+        x = x0 + name_w
+        for (_, _, w), v in zip(cols, values[1:]):
+            x += w
+            fig.text(x / fw, y / fh, v, fontsize=fontsize, color=colour, va="top", ha="right",
+                     fontweight=weight)
+
+    put(["point", *[c[1] for c in cols]], colour=MUTED)
+    y -= line_h
+    fig.add_artist(Line2D([x0 / fw, (x0 + width) / fw], [(y + 0.25 * line_h) / fh] * 2,
+                          color="#bbbbbb", lw=0.5))
+    shown = rows if max_rows is None else rows[:max_rows]
+    for row in shown:
+        h = f"{row['height']:.2f}" if np.isfinite(row["height"]) else "–"
+        lim = f"{row['limit']:.2f}" if row["limit"] is not None else "–"
+        verdict = {True: "ok", False: "OVER", None: ""}[row["ok"]]
+        colour = {True: OK_COLOUR, False: OVER_COLOUR, None: INK}[row["ok"]]
+        put([textwrap.shorten(row["name"], name_chars, placeholder="…"), h, lim, verdict],
+            colour=colour)
+        y -= line_h
+    if len(shown) < len(rows):
+        fig.text(x0 / fw, y / fh, f"(+{len(rows) - len(shown)} more: see points.csv)",
+                 fontsize=fontsize, color=MUTED, va="top")
+        y -= line_h
+    return anchor[1] - y
 
 
 def title_lines(result, scenario, info) -> tuple[str, str, str]:
@@ -977,8 +1056,15 @@ def sheltering_map(result, scenario, sea, path, show="kd", dpi=170):
                            fh - foot_top - 0.75 - head_h), result, scenario, name, show)
     draw_colorbar(fig, drawn)
     pos = drawn["ax"].get_position()
-    draw_legend(fig, drawn, (pos.x1 * fw + 1.15, pos.y1 * fh),
-                fontsize=7.5 if not tall else 7.0)
+    key_x = pos.x1 * fw + 1.15
+    legend = draw_legend(fig, drawn, (key_x, pos.y1 * fh), fontsize=7.5 if not tall else 7.0)
+    y_table = pos.y1 * fh
+    if legend is not None:
+        y_table = legend.get_window_extent(fig.canvas.get_renderer()).y0 / fig.dpi - 0.25
+    room = y_table - pos.y0 * fh
+    fs = 7.5 if not tall else 7.0
+    draw_point_table(fig, drawn, (key_x, y_table), fw - margin + 0.25 - key_x, fontsize=fs,
+                     max_rows=max(1, int(room / (fs * 1.45 / 72.0)) - 3))
 
     fig.text(margin / fw, 1 - 0.28 / fh, head_lines[0], fontsize=title_size, fontweight="bold",
              color=INK, va="top")

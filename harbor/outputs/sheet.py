@@ -17,7 +17,7 @@ from matplotlib.patches import Rectangle
 from harbor.cautions import CAUTIONS
 from harbor.outputs._atomic import atomic_path, slug
 from harbor.outputs.maps import (INK, MUTED, OVER_COLOUR, crs_label, draw_colorbar, draw_legend,
-                                 draw_map, new_figure, sea_info, sea_label, sea_name,
+                                 draw_map, draw_point_table, new_figure, sea_info, sea_label, sea_name,
                                  standard_scale, title_lines, warning_lines, wrap_to)
 
 MM = 1.0 / 25.4  # inches per millimetre
@@ -185,9 +185,11 @@ def pdf_sheet(result, scenario, sea, path, sheet_number=1, sheet_count=1, show="
     min_n = max(dx / (map_box[2] * 0.0254), dy / (map_box[3] * 0.0254))
     scale = standard_scale(min_n)
     drawn = draw_map(fig, map_box, result, scenario, name, show=show, scale=scale,
-                     label_fontsize=6.5, halign="center")
+                     label_fontsize=6.5, halign="center", valign="center")
     draw_colorbar(fig, drawn)
-    fig.text(drawn["ax"].get_position().x0, (top - 0.12) / fh, f"{drawn['label'].split(' [')[0]} \u2014 "
+    # The heading sits just above the map (which is centred in its field).
+    y_head = min(top - 0.12, drawn["ax"].get_position().y1 * fh + 0.4)
+    fig.text(drawn["ax"].get_position().x0, y_head / fh, f"{drawn['label'].split(' [')[0]} \u2014 "
              f"sea state '{name}'", fontsize=10, fontweight="bold", color=INK, va="top")
 
     side_x = right - side_w - 0.1
@@ -198,6 +200,9 @@ def pdf_sheet(result, scenario, sea, path, sheet_number=1, sheet_count=1, show="
     if legend is not None:
         bb = legend.get_window_extent(renderer)
         y_notes = bb.y0 / fig.dpi - 0.2
+    if drawn["points"]:
+        y_notes -= draw_point_table(fig, drawn, (side_x, y_notes), side_w, fontsize=6.8,
+                                    max_rows=12) + 0.15
     warns = warning_lines(result) or ["None reported for this result."]
     room = y_notes - (bottom + tb_height + 0.15)
     # The cautions are printed in full whatever happens; the warnings get the rest.
