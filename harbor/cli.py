@@ -120,12 +120,16 @@ def cmd_check(args):
     print("methods:")
     for name, method, L in zip(ds.sea.values, ds.sea_method.values, ds.sea_wavelength.values):
         print(f"  - {name}: {method} (L = {L:.1f} m)")
+    _print_warnings(warnings)
+    print(f"note: {CAUTION_SHORT}")
+    return 0
+
+
+def _print_warnings(warnings):
     if warnings:
         print("warnings:")
         for w in warnings:
             print(f"  - {w}")
-    print(f"note: {CAUTION_SHORT}")
-    return 0
 
 
 def _parse_at(values):
@@ -237,11 +241,7 @@ def _run_map(scenario, out, sea=None, show="kd", method="auto", quiet=False):
     print(f"\nwrote {len(written)} files to {out}:")
     for p in written:
         print(f"  {p}")
-    warnings = [w for w in ds.attrs["warnings"].split("\n") if w]
-    if warnings:
-        print("warnings:")
-        for w in warnings:
-            print(f"  - {w}")
+    _print_warnings([w for w in ds.attrs["warnings"].split("\n") if w])
     return 0
 
 
@@ -301,6 +301,14 @@ def cmd_diagram(args):
     return 0
 
 
+def _add_method_option(sp):
+    sp.add_argument("--method", choices=["auto", "general", "superposition", "exact"],
+                    default="auto",
+                    help="force a method (default auto: exact gap solution for narrow classic "
+                         "entrances, Penney & Price superposition for wide ones, geometric optics "
+                         "+ head diffraction for other layouts)")
+
+
 def add_sweep_parser(subparsers):
     """Add ``harbor sweep`` to the command's subparsers.
 
@@ -330,8 +338,7 @@ def add_sweep_parser(subparsers):
     sp.add_argument("--out", default="harbor-out", metavar="DIR",
                     help="output folder (default harbor-out)")
     sp.add_argument("--quiet", action="store_true", help="no progress bar")
-    sp.add_argument("--method", choices=["auto", "general", "superposition", "exact"],
-                    default="auto", help="force a method (default auto)")
+    _add_method_option(sp)
     sp.set_defaults(func=cmd_sweep)
     return sp
 
@@ -369,10 +376,7 @@ def cmd_sweep(args):
     print(sweep_text(table))
     print(verdict(table))
     print(f"wrote {', '.join(str(p) for p in written)}")
-    if table.attrs["warnings"]:
-        print("warnings:")
-        for w in table.attrs["warnings"]:
-            print(f"  - {w}")
+    _print_warnings(table.attrs["warnings"])
     print(f"note: {CAUTION_SHORT}")
     return 0
 
@@ -409,8 +413,7 @@ def add_climate_parser(subparsers):
     sp.add_argument("--workers", type=int, metavar="N",
                     help="threads to use (default: one per core)")
     sp.add_argument("--quiet", action="store_true", help="no progress bar")
-    sp.add_argument("--method", choices=["auto", "general", "superposition", "exact"],
-                    default="auto", help="force a method (default auto)")
+    _add_method_option(sp)
     sp.set_defaults(func=cmd_climate)
     return sp
 
@@ -465,11 +468,7 @@ def cmd_climate(args):
           f"{res.downtime.attrs['cases']} distinct (period, direction, spreading) cases")
     print(downtime_text(res))
     print(f"wrote {', '.join(str(p) for p in written)}")
-    other = [w for w in res.warnings if w != pw]
-    if other:
-        print("warnings:")
-        for w in other:
-            print(f"  - {w}")
+    _print_warnings([w for w in res.warnings if w != pw])
     print(f"note: {CAUTION_SHORT}")
     return 0
 
@@ -485,12 +484,7 @@ def build_parser():
     sub.required = True
     fmt = argparse.RawDescriptionHelpFormatter
 
-    def method_opt(sp):
-        sp.add_argument("--method", choices=["auto", "general", "superposition", "exact"],
-                        default="auto",
-                        help="force a method (default auto: exact gap solution for narrow classic "
-                             "entrances, Penney & Price superposition for wide ones, geometric optics "
-                             "+ head diffraction for other layouts)")
+    method_opt = _add_method_option
 
     sp = sub.add_parser("map", help="sheltering maps, PDF sheets, GeoJSON, NetCDF and CSV for every sea state",
                         epilog=MAP_EXAMPLE + "\n" + EPILOG_TAIL, formatter_class=fmt)

@@ -477,3 +477,87 @@ def test_diagram_files(tmp_path, case_name, suffix):
     head = p.read_bytes()[:8]
     assert head == b"\x89PNG\r\n\x1a\n" if suffix == ".png" else head.startswith(b"%PDF-")
     assert [q.name for q in tmp_path.iterdir()] == [p.name]
+
+
+# --------------------------------------------------------------------------- map legibility
+
+def _srgb_to_lab(rgb):
+    """CIE L*a*b* (D65) of sRGB colours in [0, 1], by the published formulas: IEC
+    61966-2-1:1999 (sRGB transfer curve and matrix) and CIE 15:2004 (L*a*b*)."""
+    c = np.asarray(rgb, float)[..., :3]
+    lin = np.where(c <= 0.04045, c / 12.92, ((c + 0.055) / 1.055) ** 2.4)
+    m = np.array([[0.4124, 0.3576, 0.1805], [0.2126, 0.7152, 0.0722],
+                  [0.0193, 0.1192, 0.9505]])
+    xyz = lin @ m.T / np.array([0.95047, 1.0, 1.08883])
+    f = np.where(xyz > (6 / 29) ** 3, np.cbrt(xyz), xyz / (3 * (6 / 29) ** 2) + 4 / 29)
+    return np.stack([116 * f[..., 1] - 16, 500 * (f[..., 0] - f[..., 1]),
+                     200 * (f[..., 1] - f[..., 2])], axis=-1)
+
+
+def test_land_cannot_be_mistaken_for_any_kd_class():
+    """Every K' fill class differs from the land colour by a colour difference that any
+    reader sees (CIE76 delta E above 10; about 2.3 is the just-noticeable difference,
+    Sharma 2003, Digital Color Imaging Handbook, ch. 1), and land is hatched as well."""
+    import matplotlib as mpl
+    from matplotlib import colors as mcolors
+
+    fill = maps.KD_FILL
+    norm = mcolors.BoundaryNorm(fill, mpl.colormaps[maps.CMAP].N, extend="max")
+    centres = np.append(0.5 * (fill[:-1] + fill[1:]), fill[-1] + 0.5)
+    classes = mpl.colormaps[maps.CMAP](norm(centres))
+    land = _srgb_to_lab(mcolors.to_rgb(maps.LAND_FACE))
+    de = np.linalg.norm(_srgb_to_lab(classes) - land, axis=-1)
+    assert de.min() > 10.0
+    assert maps.LAND_HATCH_STYLE
+
+
+def test_kd_isolines_only_in_the_sheltered_range():
+    fill, lines, _ = maps.fill_levels(np.array([0.0, 1.8]), "kd", 1.0)
+    assert lines.max() == pytest.approx(0.9) and lines.min() == pytest.approx(0.1)
+    # The fill classes do not depend on the field, so one colour is one K' on every map.
+    np.testing.assert_array_equal(fill, maps.fill_levels(np.array([0.2, 0.6]), "kd", 1.0)[0])
+
+
+def test_open_sea_mask_separates_ripples_from_shelter():
+    """A partial standing wave 1 + 0.3 cos(2 k y) seaward (y > 0) over a lee that decays
+    smoothly from 0.8: isolines are left out seaward, kept a wavelength into the lee."""
+    L, h = 80.0, 5.0
+    x = np.arange(0.0, 400.0 + h / 2, h)
+    y = np.arange(-400.0, 400.0 + h / 2, h)
+    X, Y = np.meshgrid(x, y)
+    f = np.where(Y > 0, 1.0 + 0.3 * np.cos(4 * np.pi * Y / L), 0.8 * np.exp(Y / 200.0))
+    m = maps.open_sea_mask(f, x, y, L, 1.0)
+    assert m[Y > 0].all()
+    assert not m[Y < -L].any()
+
+
+def test_point_labels_clear_the_arms(case):
+    """No point label's box crosses a breakwater arm (display coordinates)."""
+    from matplotlib.text import Annotation
+
+    sc, res = case
+    fig = maps.new_figure()
+    drawn = maps.draw_map(fig, (0.75, 1.2, 8.0, 6.2), res, sc, "storm SW")
+    ax = drawn["ax"]
+    renderer = fig.canvas.get_renderer()
+    labels = [t for t in ax.texts if isinstance(t, Annotation)]
+    assert len(labels) == len(sc.points)
+    arms = [shapely.LineString(ax.transData.transform(np.asarray(a.line, float)))
+            for a in sc.layout.arms]
+    for t in labels:
+        bb = t.get_bbox_patch().get_window_extent(renderer)
+        box = shapely.box(bb.x0, bb.y0, bb.x1, bb.y1)
+        assert not any(box.intersects(arm) for arm in arms), t.get_text()
+
+
+def test_point_table_lists_every_point(case):
+    sc, res = case
+    fig = maps.new_figure()
+    drawn = maps.draw_map(fig, (0.75, 1.2, 8.0, 6.2), res, sc, "storm SW")
+    n = len(fig.texts)
+    used = maps.draw_point_table(fig, drawn, (9.0, 7.0), 2.5)
+    text = " ".join(t.get_text() for t in fig.texts[n:])
+    assert used > 0
+    for p in sc.points:
+        assert p.name in text
+    assert "OVER" in text or "ok" in text
