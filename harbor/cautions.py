@@ -22,6 +22,11 @@ CAUTIONS = (
 )
 
 
+#: Validity warning attached to every solve: the methods neglect reflection inside the basin.
+REFLECTION_NOTE = ("reflection from quays, shores and other walls inside the basin is "
+                   "neglected: real basins can be rougher than shown")
+
+
 def caution_text(sep: str = " ") -> str:
     """Return all cautions joined by ``sep``."""
     return sep.join(CAUTIONS)

@@ -397,7 +397,7 @@ def add_climate_parser(subparsers):
     from harbor.study.climate import CLIMATE_EXAMPLE
 
     sp = subparsers.add_parser(
-        "climate", help="berth downtime (% of time above the limit) from a wave climate table",
+        "climate", help="berth downtime (%% of time above the limit) from a wave climate table",
         epilog=CLIMATE_EXAMPLE + "\n" + EPILOG_TAIL,
         formatter_class=argparse.RawDescriptionHelpFormatter)
     sp.add_argument("scenario", help="scenario file (TOML); its points' limits are used")

@@ -185,3 +185,12 @@ def test_diagram_writes_png(tmp_path, capsys):
                         "--resolution", "0.1"], capsys)
     assert code == 0, err
     assert out.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+def test_top_level_help_lists_every_command(capsys):
+    with pytest.raises(SystemExit) as e:
+        main(["--help"])
+    assert e.value.code == 0
+    text = capsys.readouterr().out
+    for cmd in ("map", "points", "check", "diagram", "demo", "sweep", "climate"):
+        assert cmd in text

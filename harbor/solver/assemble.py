@@ -12,7 +12,7 @@ import numpy as np
 import xarray as xr
 
 from harbor import __version__
-from harbor.cautions import caution_text
+from harbor.cautions import REFLECTION_NOTE, caution_text
 from harbor.geometry.visibility import distance_to_arms, inside_land
 from harbor.solver.layout import layout_field, layout_warnings
 from harbor.solver.random import random_sea_field
@@ -22,8 +22,6 @@ from harbor.waves.spectra import BM_PEAK_RATIO, jonswap_peak_period, random_comp
 #: Depth-limited breaking height as a fraction of the depth (common practice).
 BREAKING_RATIO = 0.78
 
-REFLECTION_NOTE = ("reflection from quays, shores and other walls inside the basin is "
-                   "neglected: real basins can be rougher than shown")
 
 
 def grid_coordinates(grid):
