@@ -14,7 +14,7 @@ import xarray as xr
 from harbor import __version__
 from harbor.cautions import REFLECTION_NOTE, caution_text
 from harbor.geometry.visibility import distance_to_arms, inside_land
-from harbor.solver.layout import layout_field, layout_warnings
+from harbor.solver.layout import METHOD_GENERAL, layout_field, layout_warnings
 from harbor.solver.random import random_sea_field
 from harbor.waves.dispersion import wavelength as _wavelength
 from harbor.waves.spectra import BM_PEAK_RATIO, jonswap_peak_period, random_components
@@ -79,11 +79,14 @@ def solve_sea(scenario, sea, px, py, method="auto", progress=None):
                               peak_period=sea.peak_period, gamma=sea.gamma)
     res = random_sea_field(scenario.layout, px, py, comps, site.depth, alpha, g=site.g,
                            method=method, progress=progress)
-    ranked = sorted(res.methods.items(), key=lambda kv: -kv[1])
+    ranked = [(m, s) for m, s in sorted(res.methods.items(), key=lambda kv: -kv[1]) if s > 0.005]
     if len(ranked) == 1:
         name = ranked[0][0]
     else:
-        name = "; ".join(f"{m} ({100 * s:.0f} % of energy)" for m, s in ranked if s > 0.005)
+        # the general method also covers what the gap methods leave outside the basin
+        parts = [f"{m.split(', geometric optics')[0]} for {100 * s:.0f} % of the energy"
+                 for m, s in ranked if m != METHOD_GENERAL]
+        name = "; ".join(parts) + "; geometric optics + head diffraction elsewhere"
     return res.kd, res.period_ratio, name, res.reaching
 
 
