@@ -153,19 +153,20 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
                     if grp.size == 0:
                         continue
                     ny = sgn * n
-                    be0 = np.zeros(bx.size)
-                    for s in range(0, bx.size, CHUNK):
-                        cx = bx[s:s + CHUNK] - ent.center[0]
-                        cy = by[s:s + CHUNK] - ent.center[1]
-                        xl = cx * e[0] + cy * e[1]
-                        yl = cx * ny[0] + cy * ny[1]
-                        if use == "exact":
-                            be0[s:s + CHUNK] = gap_exact_energy(xl, yl, L, local[grp], ent.width,
-                                                                w[grp])
-                        else:
-                            p = np.stack([np.abs(gap_superposition(xl, yl, L, a, ent.width))**2
-                                          for a in local[grp]], axis=1)
-                            be0[s:s + CHUNK] = p @ w[grp]
+                    cx = bx - ent.center[0]
+                    cy = by - ent.center[1]
+                    xl = cx * e[0] + cy * e[1]
+                    yl = cx * ny[0] + cy * ny[1]
+                    if use == "exact":
+                        # compiled and reduced to energy inside: no per-direction fields
+                        be0 = gap_exact_energy(xl, yl, L, local[grp], ent.width, w[grp])
+                    else:
+                        be0 = np.zeros(bx.size)
+                        for a, wa in zip(local[grp], w[grp]):
+                            for s in range(0, bx.size, CHUNK):
+                                u = gap_superposition(xl[s:s + CHUNK], yl[s:s + CHUNK], L, a,
+                                                      ent.width)
+                                be0[s:s + CHUNK] += wa * (u.real**2 + u.imag**2)
                     e0[inside] += be0
                     e2[inside] += f * f * be0
                 reaching += float(w[pick].sum())

@@ -215,9 +215,23 @@ if HAVE_NUMBA:
                 ay = abs(y)
                 for j in range(m):
                     dx = xp[p] - xs[j]
-                    h = _h0(k * np.sqrt(dx * dx + ay * ay), gval, gder, asym, cj, cy)
-                    hr[j] = h.real
-                    hi[j] = h.imag
+                    z = k * np.sqrt(dx * dx + ay * ay)
+                    if z >= _Z_ASYM:
+                        # the common far case, inline (see _h0)
+                        w = 1.0 / z
+                        w2 = w * w
+                        pr = asym[0] + w2 * (-asym[2] + w2 * (asym[4] - w2 * asym[6]))
+                        pim = w * (asym[1] + w2 * (-asym[3] + w2 * (asym[5] - w2 * asym[7])))
+                        amp = np.sqrt(2.0 / np.pi * w)
+                        c, sn = _cis(z - 0.25 * np.pi, _CIS_TAB)
+                        c *= amp
+                        sn *= amp
+                        hr[j] = c * pr - sn * pim
+                        hi[j] = c * pim + sn * pr
+                    else:
+                        h = _h0(z, gval, gder, asym, cj, cy)
+                        hr[j] = h.real
+                        hi[j] = h.imag
                 for d in range(nd):
                     ar[d] = 0.0
                     ai[d] = 0.0

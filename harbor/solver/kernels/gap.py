@@ -247,9 +247,10 @@ def _radiated(x, y, k, b, t, w, chunk=32768, far_nodes=None):
         Ln[:, 0] = -np.pi * (np.log(2.0) + np.log(np.abs(zeta)))
         Ln[:, 1:] = -(np.pi / n) * np.real(zeta[:, None] ** n[None, :])
         rho = np.hypot(xf[idx, None] - xs[None, :], yf[idx, None])
-        J0 = special.j0(k * rho)
         with np.errstate(divide="ignore", invalid="ignore"):
-            smooth = special.hankel1(0, k * rho) - (2j / np.pi) * J0 * np.log(rho / b)
+            H = hankel_matrix(xf[idx], yf[idx], xs, k)
+            J0 = H.real                      # J0 = Re H0 for real arguments
+            smooth = H - (2j / np.pi) * J0 * np.log(rho / b)
         zero = rho == 0
         if np.any(zero):
             smooth[zero] = 1.0 + (2j / np.pi) * (np.log(k * b / 2.0) + _EULER_GAMMA)
