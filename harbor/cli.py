@@ -302,11 +302,12 @@ def cmd_diagram(args):
 
 
 def _add_method_option(sp):
-    sp.add_argument("--method", choices=["auto", "general", "superposition", "exact"],
+    sp.add_argument("--method", choices=["auto", "general", "superposition", "exact", "field"],
                     default="auto",
                     help="force a method (default auto: exact gap solution for narrow classic "
                          "entrances, Penney & Price superposition for wide ones, geometric optics "
-                         "+ head diffraction for other layouts)")
+                         "+ head diffraction for other layouts; field: finite-element check of "
+                         "a small harbour, regular seas only)")
 
 
 def add_sweep_parser(subparsers):

@@ -14,10 +14,14 @@ import xarray as xr
 from harbor import __version__
 from harbor.cautions import REFLECTION_NOTE, caution_text
 from harbor.geometry.visibility import distance_to_arms, inside_land
+from harbor.errors import InputError
+from harbor.solver.accuracy import accuracy_warnings
 from harbor.solver.layout import METHOD_GENERAL, layout_field, layout_warnings
 from harbor.solver.random import random_sea_field
 from harbor.waves.dispersion import wavelength as _wavelength
 from harbor.waves.spectra import BM_PEAK_RATIO, jonswap_peak_period, random_components
+
+METHOD_FIELD = "full-field finite elements (P2, absorbing layer), land edges reflecting"
 
 #: Depth-limited breaking height as a fraction of the depth (common practice).
 BREAKING_RATIO = 0.78
@@ -69,6 +73,14 @@ def solve_sea(scenario, sea, px, py, method="auto", progress=None):
     """
     site = scenario.site
     alpha = float(site.travel_angle(sea.from_deg))
+    if method == "field":
+        from harbor.solver.accuracy import field_method_solve
+
+        if sea.kind != "regular":
+            raise InputError(f"--method field solves regular seas only; sea '{sea.name}' is "
+                             f"random", file=scenario.path, key="--method")
+        kd = np.abs(field_method_solve(scenario, sea, px, py))
+        return kd, np.full(kd.shape, np.nan), METHOD_FIELD, 1.0
     if sea.kind == "regular":
         L = float(_wavelength(sea.period, site.depth, site.g))
         u, info = layout_field(scenario.layout, px, py, L, alpha, method=method)
@@ -104,8 +116,10 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         scenario's named points only.
     grid : bool
         Compute the grid (False: points only, much faster).
-    method : {"auto", "general", "superposition", "exact"}
-        Force a method (see :func:`harbor.solver.layout.layout_field`).
+    method : {"auto", "general", "superposition", "exact", "field"}
+        Force a method (see :func:`harbor.solver.layout.layout_field`); ``"field"`` runs
+        the finite-element solution (regular seas, small harbours) to check a screening
+        result (:func:`harbor.solver.accuracy.field_method_solve`).
     progress : callable, optional
         ``progress(sea_name, done, total)``.
 
@@ -170,7 +184,15 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         L = _sea_wavelength(s, site)
         wavelengths.append(L)
         reaching.append(reach)
-        for w in layout_warnings(scenario.layout, L, [(p[0], p[1], p[2]) for p in pts]):
+        more = layout_warnings(scenario.layout, L, [(p[0], p[1], p[2]) for p in pts])
+        if method == "field":
+            from harbor.solver.accuracy import field_method_notes
+
+            more += field_method_notes(scenario, s)
+        else:
+            alpha = float(site.travel_angle(s.from_deg))
+            more += accuracy_warnings(scenario.layout, L, directions=[(f"sea '{s.name}'", alpha)])
+        for w in more:
             if w not in warnings:
                 warnings.append(w)
         if reach < 0.5:

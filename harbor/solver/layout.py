@@ -31,6 +31,9 @@ from harbor.solver.kernels.sommerfeld import sommerfeld_terms
 #: Arms whose far end is not rooted still count as "long" for the classic entrance when
 #: their end segment is at least this many wavelengths long.
 LONG_ARM_WAVELENGTHS = 3.0
+#: Bends that turn an arm by at least this much (degrees) diffract; gentler bends are
+#: treated as straight (their half-plane terms made the lee worse, docs/accuracy.md).
+BEND_DIFFRACTION_DEG = 45.0
 #: Waves closer than this to parallel with an arm's end segment (degrees) are grazing:
 #: that head's local solution is evaluated a hair off parallel.
 GRAZING_DEG = 0.01
@@ -187,8 +190,9 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
     the travel direction in a face and :math:`D_h` the diffracted part of Sommerfeld's
     solution for the edge h (:func:`harbor.solver.kernels.sommerfeld.sommerfeld_terms`).
     The edges are the free heads (half-plane along the end segment) and the bends of an
-    arm that cast a shadow boundary, i.e. whose two segments lie on the same side of the
-    ray through the bend (half-plane along the more up-wave segment, whose face is lit).
+    arm that turn it by at least :data:`BEND_DIFFRACTION_DEG` and cast a shadow boundary,
+    i.e. whose two segments lie on the same side of the ray through the bend (half-plane
+    along the more up-wave segment, whose face is lit).
     A bend whose two faces are both struck casts no shadow; there only the
     reflection-boundary part of each face's half-plane solution is added. Either way the
     jumps of the geometric field across the bend's shadow and reflection boundaries are
@@ -258,17 +262,19 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
     left = np.array([-d[1], d[0]])
     for ei, (tip, dirs) in enumerate(diffracting_edges(layout)):
         if len(dirs) == 2:
+            # gentle bends: the straight-arm treatment is closer to the full-field
+            # solution than half-plane terms at the bend (docs/accuracy.md, sect. 3)
+            if np.dot(dirs[0], dirs[1]) < -np.cos(np.radians(BEND_DIFFRACTION_DEG)):
+                continue
             an, bn = float(np.dot(dirs[0], left)), float(np.dot(dirs[1], left))
             if an * bn > 0:
                 # a shadow boundary starts at the bend: half-plane along the more up-wave
                 # segment, whose face is the lit one
                 planes = [(dirs[0] if np.dot(dirs[0], d) < np.dot(dirs[1], d) else dirs[1], "both")]
-            elif np.dot(dirs[0], dirs[1]) > -np.cos(np.radians(5.0)):
+            else:
                 # the wave meets the bend from outside on both faces: only the reflection
                 # boundaries need smoothing, one half-plane per face
                 planes = [(dirs[0], "reflection"), (dirs[1], "reflection")]
-            else:
-                continue          # practically straight: nothing to smooth
         else:
             planes = [(dirs[0], "both")]
         if ray_blocked(np.array([tip[0]]), np.array([tip[1]]), up, segments,
