@@ -18,6 +18,7 @@ import shapely
 
 from harbor.errors import InputError
 from harbor.solver.field import solve_field
+from harbor.solver.layout import BEND_DIFFRACTION_DEG
 
 __all__ = ["accuracy_warnings", "field_method_solve", "field_method_notes",
            "MAX_FIELD_WAVELENGTHS"]
@@ -65,9 +66,10 @@ ENTRANCE_WAVELENGTHS = 5.0
 #: 4 L, all off: the waves trapped between the arms are missed, up to 1-2 in K').
 OVERLAP_CHANNEL_WAVELENGTHS = 4.0
 #: A bend of an arm turning by at least this (degrees) ...
-BEND_DEG = 5.0
+BEND_DEG = 30.0
 #: ... within this many wavelengths (along the arm) of a free head is off (measured: bends
-#: of 5-90 deg, either way, 1-6 L from the head: 36-82 % of the lee off).
+#: of 30-90 deg 1-6 L from the head: 10-40 % of the lee off when treated as straight,
+#: 36-82 % with half-plane terms; gentler bends, now treated as straight, 0-16 %).
 BEND_NEAR_HEAD_WAVELENGTHS = 6.0
 #: Angles within this of a threshold (degrees) count as at the threshold: the layouts of
 #: the table sit exactly on them.
@@ -248,12 +250,15 @@ def accuracy_warnings(layout, wavelength, directions=()):
             if not arm.rooted_end:
                 along.append(cum[-1] - cum[k])
             if along and min(along) <= BEND_NEAR_HEAD_WAVELENGTHS * L:
+                how = ("with half-plane solutions" if turn >= BEND_DIFFRACTION_DEG
+                       else "as straight")
+                share = "36-82 %" if turn >= BEND_DIFFRACTION_DEG else "10-40 %"
                 out.append(
                     f"arm '{arm.name}' bends by {turn:.0f} deg {min(along):.0f} m "
                     f"({min(along) / L:.1f} L) from its head: the general method treats "
-                    f"the bend with half-plane solutions and was measured off by more "
-                    f"than 0.05 in K' over 36-82 % of the lee of such a dog-leg (median "
-                    f"0.03-0.12, up to 0.3-0.6 near the bend; {ref})")
+                    f"the bend {how} and was measured off by more than 0.05 in K' over "
+                    f"{share} of the lee of such a dog-leg (up to 0.3-0.6 near the bend; "
+                    f"{ref})")
 
     # direction-dependent rules
     partners = set()
