@@ -92,19 +92,25 @@ if HAVE_NUMBA:
         s = h00 * a.imag + h01 * b.imag + h10 * a.real + h11 * b.real
         return c, s
 
+    @numba.njit(cache=True, inline="always")
+    def _h0_far(z, asym):
+        """(Re, Im) of H0(z) for z >= 25: Hankel's expansion, 8 terms."""
+        # sum a_m (i/z)^m split into real and imaginary parts (i^m cycles 1, i, -1, -i)
+        w = 1.0 / z
+        w2 = w * w
+        pr = asym[0] + w2 * (-asym[2] + w2 * (asym[4] - w2 * asym[6]))
+        pim = w * (asym[1] + w2 * (-asym[3] + w2 * (asym[5] - w2 * asym[7])))
+        amp = np.sqrt(2.0 / np.pi * w)
+        c, sn = _cis(z - 0.25 * np.pi, _CIS_TAB)
+        c *= amp
+        sn *= amp
+        return c * pr - sn * pim, c * pim + sn * pr
+
     @numba.njit(cache=True, fastmath=False, inline="always")
     def _h0(z, gval, gder, asym, cj, cy):
         if z >= _Z_ASYM:
-            # sum a_m (i/z)^m split into real and imaginary parts (i^m cycles 1, i, -1, -i)
-            w = 1.0 / z
-            w2 = w * w
-            pr = asym[0] + w2 * (-asym[2] + w2 * (asym[4] - w2 * asym[6]))
-            pi_ = w * (asym[1] + w2 * (-asym[3] + w2 * (asym[5] - w2 * asym[7])))
-            amp = np.sqrt(2.0 / np.pi * w)
-            c, sn = _cis(z - 0.25 * np.pi, _CIS_TAB)
-            c *= amp
-            sn *= amp
-            return complex(c * pr - sn * pi_, c * pi_ + sn * pr)
+            hr, hi = _h0_far(z, asym)
+            return complex(hr, hi)
         if z >= _Z_SERIES:
             pos = (z - _Z_SERIES) / _H_STEP
             i = int(pos)
@@ -217,17 +223,8 @@ if HAVE_NUMBA:
                     dx = xp[p] - xs[j]
                     z = k * np.sqrt(dx * dx + ay * ay)
                     if z >= _Z_ASYM:
-                        # the common far case, inline (see _h0)
-                        w = 1.0 / z
-                        w2 = w * w
-                        pr = asym[0] + w2 * (-asym[2] + w2 * (asym[4] - w2 * asym[6]))
-                        pim = w * (asym[1] + w2 * (-asym[3] + w2 * (asym[5] - w2 * asym[7])))
-                        amp = np.sqrt(2.0 / np.pi * w)
-                        c, sn = _cis(z - 0.25 * np.pi, _CIS_TAB)
-                        c *= amp
-                        sn *= amp
-                        hr[j] = c * pr - sn * pim
-                        hi[j] = c * pim + sn * pr
+                        # the common far case, without the complex round trip of _h0
+                        hr[j], hi[j] = _h0_far(z, asym)
                     else:
                         h = _h0(z, gval, gder, asym, cj, cy)
                         hr[j] = h.real
