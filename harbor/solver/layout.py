@@ -23,6 +23,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from harbor.geometry.entrance import basin_mask, nearest_heads
+from harbor.geometry.layout import Layout
 from harbor.geometry.visibility import (diffracting_edges, layout_segments, ray_blocked,
                                         segment_blocked)
 from harbor.solver.kernels.gap import AUTO_EXACT_BELOW, auto_method, gap
@@ -34,6 +35,9 @@ LONG_ARM_WAVELENGTHS = 3.0
 #: Bends that turn an arm by at least this much (degrees) diffract; gentler bends are
 #: treated as straight (their half-plane terms made the lee worse, docs/accuracy.md).
 BEND_DIFFRACTION_DEG = 45.0
+#: An arm whose width across the direction of travel is below this many wavelengths is
+#: left out for that direction (seen edge-on, see :func:`edge_on_arms`).
+EDGE_ON_WIDTH = 0.5
 #: Waves closer than this to parallel with an arm's end segment (degrees) are grazing:
 #: that head's local solution is evaluated a hair off parallel.
 GRAZING_DEG = 0.01
@@ -130,6 +134,40 @@ def gap_field(entrance, px, py, wavelength, alpha, method="auto"):
     return phase0 * gap(x, y, wavelength, local_dir, entrance.width, method=method), method
 
 
+def edge_on_arms(layout, direction, wavelength):
+    """Indices of the arms that the waves see (nearly) edge-on.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+    direction : array_like, shape (2,)
+        Unit vector of the direction of travel.
+    wavelength : float
+        L (m).
+
+    Returns
+    -------
+    set of int
+        Arms whose width projected across the direction of travel is below
+        :data:`EDGE_ON_WIDTH` wavelengths.
+
+    Notes
+    -----
+    A thin rigid arm seen edge-on scatters little, while the half-plane solution of its
+    down-wave head assumes an arm reaching far up-wave and predicts a shadow and a
+    doubled wave on either side of it: against the finite-element solution behind a
+    detached breakwater of 2-4 L at 0.5-5 degrees the median error in K' was 0.24-0.30 with
+    the half-plane terms and 0.004-0.04 with the arm left out (docs/accuracy.md).
+    """
+    n = np.array([-direction[1], direction[0]])
+    out = set()
+    for i, arm in enumerate(layout.arms):
+        across = np.asarray(arm.line, float) @ n
+        if across.max() - across.min() < EDGE_ON_WIDTH * wavelength:
+            out.add(i)
+    return out
+
+
 def head_visibility(layout, px, py, segments=None):
     """For every diffracting edge (free heads and bends, as
     :func:`harbor.geometry.visibility.diffracting_edges`): where it is visible from.
@@ -207,6 +245,14 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
     .. [2] Keller, J. B. (1962). Geometrical theory of diffraction. *Journal of the
        Optical Society of America*, 52(2), 116-130.
     """
+    d0 = np.array([np.cos(alpha), np.sin(alpha)])
+    edge_on = edge_on_arms(layout, d0, wavelength)
+    if edge_on:
+        # arms seen (nearly) edge-on scatter little: leave them out for this direction
+        layout = Layout(arms=tuple(a for i, a in enumerate(layout.arms) if i not in edge_on),
+                        lands=layout.lands)
+        segments = None
+        visible = None
     if segments is None:
         segments = layout_segments(layout)
     segments, owner, open_ends = segments
