@@ -18,7 +18,7 @@ import shapely
 
 from harbor.errors import InputError
 from harbor.solver.field import solve_field
-from harbor.solver.layout import BEND_DIFFRACTION_DEG
+from harbor.solver.layout import BEND_DIFFRACTION_DEG, edge_on_arms
 
 __all__ = ["accuracy_warnings", "field_method_solve", "field_method_notes",
            "MAX_FIELD_WAVELENGTHS"]
@@ -266,9 +266,10 @@ def accuracy_warnings(layout, wavelength, directions=()):
         partners.update(((i, tuple(hi)), (j, tuple(hj))))
     for label, a in _directions(directions):
         d = np.array([np.cos(a), np.sin(a)])
+        edge_on = edge_on_arms(layout, d, L)
         for i, (arm, nf) in enumerate(zip(arms, n_free)):
-            if nf == 0:
-                continue
+            if nf == 0 or i in edge_on:
+                continue          # edge-on arms are left out by the method, which is right
             p = np.asarray(arm.line, float)
             seg = np.diff(p, axis=0)
             graze = [k for k in range(len(seg))
