@@ -339,9 +339,16 @@ def points_csv_text(result) -> str:
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(CSV_COLUMNS)
+    # x, y in the scenario's own CRS when the result carries them (lon/lat scenarios)
+    cx = result["point_x_crs"].values if "point_x_crs" in result else None
+    cy = result["point_y_crs"].values if "point_y_crs" in result else None
+    lonlat = str(result.attrs.get("scenario_crs", "")).upper() in ("EPSG:4326", "OGC:CRS84")
+    digits = 8 if lonlat else 2
     for name in [str(s) for s in result["sea"].values]:
-        for r in point_rows(result, None, name):
-            w.writerow([name, r["name"], _fmt(r["x"], 2), _fmt(r["y"], 2), _fmt(r["kd"], 4),
+        for i, r in enumerate(point_rows(result, None, name)):
+            x = cx[i] if cx is not None else r["x"]
+            y = cy[i] if cy is not None else r["y"]
+            w.writerow([name, r["name"], _fmt(x, digits), _fmt(y, digits), _fmt(r["kd"], 4),
                         _fmt(r["height"], 3), _fmt(r["period_ratio"], 4),
                         _fmt(r["limit"], 3),
                         "" if r["ok"] is None else ("true" if r["ok"] else "false")])
