@@ -194,3 +194,18 @@ def test_top_level_help_lists_every_command(capsys):
     text = capsys.readouterr().out
     for cmd in ("map", "points", "check", "diagram", "demo", "sweep", "climate"):
         assert cmd in text
+
+
+def test_lonlat_scenario_points_csv_in_lonlat(tmp_path, capsys):
+    # The points CSV of a map run gives x, y in the scenario's CRS, as `harbor points`
+    # does: for an EPSG:4326 scenario, lon/lat (GeoJSON order, RFC 7946).
+    src = ROOT / "tests" / "data" / "lonlat_harbour.toml"
+    code, _, err = run(["map", str(src), "--out", str(tmp_path / "m"), "--quiet"], capsys)
+    assert code == 0, err
+    rows = list(csv.DictReader((tmp_path / "m" / "points.csv").open()))
+    code, out, _ = run(["points", str(src)], capsys)
+    ref = list(csv.DictReader(io.StringIO(out)))
+    for r, q in zip(rows, ref):
+        assert -12.01 < float(r["x"]) < -11.99 and 56.99 < float(r["y"]) < 57.01
+        assert float(r["x"]) == pytest.approx(float(q["x"]), abs=1e-6)
+        assert float(r["kd"]) == pytest.approx(float(q["kd"]), abs=1e-3)
