@@ -94,6 +94,37 @@ def _local(px, py, origin, ex, ey):
     return dx * ex[0] + dy * ex[1], dx * ey[0] + dy * ey[1]
 
 
+def entrance_frames(entrance, alphas):
+    """The gap kernel's frame for each direction of travel through a classic entrance.
+
+    Parameters
+    ----------
+    entrance : harbor.geometry.entrance.Entrance
+    alphas : numpy.ndarray
+        Directions of travel (rad, math angles in the work frame).
+
+    Returns
+    -------
+    side : numpy.ndarray of float
+        +1 or -1: the kernel's y axis is ``side`` times the left normal of the entrance
+        axis, so that the waves arrive from the kernel's y < 0.
+    local : numpy.ndarray
+        Direction of travel in the kernel frame (degrees, 0-180).
+    usable : numpy.ndarray of bool
+        False for waves that travel out of the basin towards the sea, or within
+        :data:`GRAZING_DEG` of the entrance line: the gap kernel does not apply to them.
+    """
+    e = entrance.axis
+    n = np.array([-e[1], e[0]])
+    d = np.stack([np.cos(alphas), np.sin(alphas)], axis=-1)
+    across = d @ n
+    side = np.where(across < 0, -1.0, 1.0)
+    from_sea = side * float(np.dot(n, entrance.basin_normal)) >= 0
+    local = np.degrees(np.arctan2(np.abs(across), d @ e))
+    usable = from_sea & (local > GRAZING_DEG) & (local < 180 - GRAZING_DEG)
+    return side, local, usable
+
+
 def gap_field(entrance, px, py, wavelength, alpha, method="auto"):
     """Field of a classic entrance at world points, or None if the waves come from the basin.
 
@@ -114,18 +145,13 @@ def gap_field(entrance, px, py, wavelength, alpha, method="auto"):
     (numpy.ndarray of complex, str) or None
         The field (incident phase zero at the work-frame origin) and the gap method used.
     """
+    side, local, usable = entrance_frames(entrance, np.array([alpha]))
+    if not usable[0]:
+        return None
     d = np.array([np.cos(alpha), np.sin(alpha)])
     e = entrance.axis
-    n = np.array([-e[1], e[0]])
-    if np.dot(d, n) < 0:
-        n = -n
-    if np.dot(entrance.basin_normal, n) < 0:
-        return None                       # travelling out of the basin towards the sea
-    along = float(np.dot(d, e))
-    across = float(np.dot(d, n))
-    local_dir = np.degrees(np.arctan2(across, along))
-    if not (GRAZING_DEG < local_dir < 180 - GRAZING_DEG):
-        return None
+    n = side[0] * np.array([-e[1], e[0]])
+    local_dir = float(local[0])
     x, y = _local(px, py, entrance.center, e, n)
     k = 2 * np.pi / wavelength
     phase0 = np.exp(1j * k * np.dot(d, entrance.center))

@@ -14,11 +14,11 @@ import numpy as np
 
 from harbor.solver.kernels.gap import auto_method, gap_exact_energy, gap_superposition
 from harbor.solver.layout import (
-    GRAZING_DEG,
     METHOD_GAP_EXACT,
     METHOD_GAP_SUPERPOSITION,
     METHOD_GENERAL,
     classic_entrance,
+    entrance_frames,
     general_field,
     head_visibility,
 )
@@ -126,13 +126,8 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
             bx, by = xf[inside], yf[inside]
             e = ent.axis
             n = np.array([-e[1], e[0]])
-            d = np.stack([np.cos(k_alpha), np.sin(k_alpha)], axis=1)
-            across = d @ n
-            flip = across < 0
-            nn = np.where(flip[:, None], -n, n)
-            from_sea = (nn @ ent.basin_normal) >= 0
-            local = np.degrees(np.arctan2(np.abs(across), d @ e))
-            ok = from_sea & (local > GRAZING_DEG) & (local < 180 - GRAZING_DEG)
+            side, local, ok = entrance_frames(ent, k_alpha)
+            flip = side < 0
             # the exact gap solution is symmetric in y, so the side only sets the frame
             for use in ("exact", "superposition"):
                 if method in ("exact", "superposition"):
