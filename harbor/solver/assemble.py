@@ -214,6 +214,7 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
     warnings.append(REFLECTION_NOTE)
 
     H = np.array([s.height for s in seas], float)
+    pcx, pcy = site.from_work(ppx, ppy) if npnt else (ppx, ppy)
     ds = xr.Dataset(
         data_vars=dict(
             kd=(("sea", "y", "x"), kd, {"long_name": "diffraction coefficient K'", "units": "1"}),
@@ -223,9 +224,9 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
                           {"long_name": "period ratio Tm02 behind / Tm02 incident", "units": "1"}),
             point_x=(("point",), ppx, {"units": "m"}),
             point_y=(("point",), ppy, {"units": "m"}),
-            point_x_crs=(("point",), site.from_work(ppx, ppy)[0] if npnt else ppx,
+            point_x_crs=(("point",), pcx,
                          {"long_name": "point x in the scenario CRS (easting or longitude)"}),
-            point_y_crs=(("point",), site.from_work(ppx, ppy)[1] if npnt else ppy,
+            point_y_crs=(("point",), pcy,
                          {"long_name": "point y in the scenario CRS (northing or latitude)"}),
             point_limit=(("point",), plim, {"long_name": "allowable wave height", "units": "m"}),
             point_kd=(("sea", "point"), pkd, {"long_name": "diffraction coefficient K'", "units": "1"}),

@@ -300,19 +300,7 @@ def gap_exact(x, y, wavelength, direction, width, nodes=None):
     .. [2] Stamnes, J. J. (1986). *Waves in Focal Regions*. Adam Hilger, ch. 17
        (slit diffraction, the integral equation of the aperture field).
     """
-    L, B = _check(wavelength, width)
-    alpha = check_direction(direction)
-    k = 2 * np.pi / L
-    b = 0.5 * B
-    x = np.asarray(x, float)
-    y = np.asarray(y, float)
-    x, y = np.broadcast_arrays(x, y)
-    t, w = aperture_solution(k * b, alpha, nodes)
-    rad = _radiated(x, y, k, b, t, w, far_nodes=evaluation_nodes(k * b, t.size))
-    ca, sa = np.cos(alpha), np.sin(alpha)
-    seaward = y < 0
-    closed_wall = np.exp(1j * k * x * ca) * 2.0 * np.cos(k * y * sa)
-    return np.where(seaward, closed_wall - rad, rad)
+    return gap_exact_many(x, y, wavelength, [direction], width, nodes=nodes)[..., 0]
 
 
 def auto_method(wavelength, direction, width) -> str:
@@ -372,10 +360,16 @@ def gap_exact_many(x, y, wavelength, directions, width, nodes=None):
     x, y = np.broadcast_arrays(x, y)
     m = default_nodes(k * b) if nodes is None else int(nodes)
     t, W = _aperture_cached(float(k * b), np.cos(alphas), m)
-    u = _radiated(x, y, k, b, t, W, far_nodes=evaluation_nodes(k * b, m))
+    return _aperture_fields(x, y, k, b, t, W, alphas)
+
+
+def _aperture_fields(x, y, k, b, t, W, alphas):
+    """Fields of solved apertures (``W``: one column per direction) on both sides."""
+    u = _radiated(x, y, k, b, t, W, far_nodes=evaluation_nodes(k * b, t.size))
     sea = y < 0
     if np.any(sea):
         xs_, ys_ = x[sea][:, None], y[sea][:, None]
+        # closed wall (incident + reflected) minus the aperture's radiation
         u[sea] = (np.exp(1j * k * xs_ * np.cos(alphas)) * (2.0 * np.cos(k * ys_ * np.sin(alphas)))
                   - u[sea])
     return u
@@ -446,7 +440,7 @@ def gap_exact_energy(x, y, wavelength, directions, width, weights, nodes=None):
         out[mid] = gap_energy(xf[mid], yf[mid], b * t, k, W, ca, sa, wts, -0.5j * np.pi / m)
     near = ~far & ~mid
     if np.any(near):
-        U = gap_exact_many(xf[near], yf[near], L, dirs, B, nodes=m)
+        U = _aperture_fields(xf[near], yf[near], k, b, t, W, alphas)
         out[near] = (U.real**2 + U.imag**2) @ wts
     return out.reshape(x.shape)
 
