@@ -189,8 +189,7 @@ def points_table(scenario, at=None, sea=None, method="auto"):
 
 
 def _check_points(scenario, at):
-    import numpy as np
-
+    from harbor.geometry.checks import at_problem
     from harbor.geometry.site import lonlat_problem
 
     site = scenario.site
@@ -199,9 +198,9 @@ def _check_points(scenario, at):
             prob = lonlat_problem(x, y)
             if prob:
                 raise InputError(prob, file=scenario.path, key="--at")
-        wx, wy = site.to_work(np.array([x]), np.array([y]))
-        if scenario.layout.in_land(wx, wy)[0]:
-            raise InputError(f"point {x:g} {y:g} lies on land", file=scenario.path, key="--at")
+        problem = at_problem(scenario, x, y)
+        if problem:
+            raise InputError(f"point {x:.10g} {y:.10g} {problem}", file=scenario.path, key="--at")
 
 
 def cmd_points(args):
@@ -271,23 +270,8 @@ def cmd_diagram(args):
     if not (0 < args.direction < 180):
         raise InputError(f"--direction must be strictly between 0 and 180 degrees, got {args.direction:g}",
                          key="--direction")
-    if args.width is not None and not args.width > 0:
-        raise InputError(f"--width must be positive, got {args.width:g}", key="--width")
-    if args.spreading <= 0:
+    if not args.spreading > 0:
         raise InputError(f"--spreading must be positive, got {args.spreading:g}", key="--spreading")
-    ext = args.extent
-    if ext is None:
-        half = 4.0 if args.case == "semi-infinite" else max(4.0, (args.width or 0) / 2 + 3)
-        ext = (-half, -2.0, half, 8.0)
-    if not (ext[0] < ext[2] and ext[1] < ext[3]):
-        raise InputError("--extent must be XMIN YMIN XMAX YMAX with XMIN < XMAX and YMIN < YMAX",
-                         key="--extent")
-    res = args.resolution or max((ext[2] - ext[0]) / 200.0, 0.02)
-    if args.random and res < 0.05:
-        res = 0.05
-    ds = diagram_field(args.case, args.direction, width=args.width, extent=tuple(ext),
-                       resolution=res, kind="random" if args.random else "regular",
-                       spreading=args.spreading)
     out = args.out
     suffix = os.path.splitext(out)[1].lower()
     if suffix not in (".png", ".pdf"):
@@ -295,6 +279,13 @@ def cmd_diagram(args):
     parent = os.path.dirname(os.path.abspath(out))
     if not os.path.isdir(parent):
         raise InputError(f"folder '{parent}' does not exist", key="--out")
+    try:
+        ds = diagram_field(args.case, args.direction, width=args.width, extent=args.extent,
+                           resolution=args.resolution,
+                           kind="random" if args.random else "regular",
+                           spreading=args.spreading)
+    except InputError as e:   # name the option, not the function's argument
+        raise InputError(e.problem, key=f"--{e.key}" if e.key else None) from None
     plot_diagram(ds, out)
     print(f"wrote {out} ({ds.attrs['method']})")
     print(f"note: {CAUTION_SHORT}")
@@ -395,7 +386,7 @@ def add_climate_parser(subparsers):
     argparse.ArgumentParser
         The ``climate`` parser (its ``func`` default is :func:`cmd_climate`).
     """
-    from harbor.study.climate import CLIMATE_EXAMPLE
+    from harbor.study.climate import CLIMATE_EXAMPLE, MAX_CLIMATE_CASES
 
     sp = subparsers.add_parser(
         "climate", help="berth downtime (%% of time above the limit) from a wave climate table",
@@ -414,6 +405,10 @@ def add_climate_parser(subparsers):
     sp.add_argument("--workers", type=int, metavar="N",
                     help="threads to use (default: one per core)")
     sp.add_argument("--quiet", action="store_true", help="no progress bar")
+    sp.add_argument("--max-cases", type=int, default=MAX_CLIMATE_CASES, metavar="N",
+                    help="most distinct (period, direction, spreading) cases to solve "
+                         f"(default {MAX_CLIMATE_CASES}; the count and a time estimate "
+                         "are printed first)")
     _add_method_option(sp)
     sp.set_defaults(func=cmd_climate)
     return sp
@@ -433,8 +428,9 @@ def cmd_climate(args):
         0; user mistakes raise :class:`harbor.errors.InputError`.
     """
     from harbor.geometry.entrance import nearest_heads
-    from harbor.study.climate import (climate_downtime, downtime_text, percent_warning,
-                                      read_climate, write_climate)
+    from harbor.study.climate import (check_case_count, climate_downtime, downtime_text,
+                                      duplicate_warning, percent_warning, read_climate,
+                                      write_climate)
     from harbor.study.sweep import MoveRejected, move_head
 
     sc = _load(args.scenario)
@@ -447,6 +443,10 @@ def cmd_climate(args):
     pw = percent_warning(table)
     if pw:
         print(f"warning: {pw}")
+    dw = duplicate_warning(table)
+    if dw:
+        print(f"warning: {dw}")
+    print(check_case_count(table, args.max_cases))
     title = None
     if args.arm is not None:
         try:
@@ -542,25 +542,67 @@ def build_parser():
 
 def main(argv=None):
     """Entry point of the ``harbor`` command; returns the exit code."""
+    from harbor.errors import MachineError, Terminated, machine_fault
+    from harbor.outputs._atomic import claim_output
+
     parser = build_parser()
     args = parser.parse_args(argv)
+    restore = _on_sigterm_raise(Terminated)
     try:
-        return int(args.func(args) or 0)
+        out = getattr(args, "out", None)
+        if out is None:
+            return int(args.func(args) or 0)
+        with claim_output(out, "file" if args.command == "diagram" else "dir"):
+            return int(args.func(args) or 0)
     except InputError as e:
         print(f"harbor: {e.line()}", file=sys.stderr)
         return 2
+    except MachineError as e:
+        print(f"harbor: {e.line()}", file=sys.stderr)
+        return e.exit_code
+    except Terminated:
+        print("harbor: terminated (SIGTERM); no output written", file=sys.stderr)
+        return 143
     except KeyboardInterrupt:
         print("harbor: interrupted; no output written", file=sys.stderr)
         return 130
     except BrokenPipeError:
         return 0
+    except OSError as e:
+        fault = machine_fault(e)
+        if fault is None or os.environ.get("HARBOR_DEBUG"):
+            return _internal_error(e)
+        print(f"harbor: {fault.line()}", file=sys.stderr)
+        return fault.exit_code
     except Exception as e:  # pragma: no cover - internal errors
-        print(f"harbor: internal error ({type(e).__name__}: {e}). This is a bug in harbor "
-              f"{__version__}; please report it with the command and the scenario file.",
-              file=sys.stderr)
-        if os.environ.get("HARBOR_DEBUG"):
-            raise
-        return 1
+        return _internal_error(e)
+    finally:
+        restore()
+
+
+def _on_sigterm_raise(exc_type):
+    """Make SIGTERM raise ``exc_type`` in the main thread (clean-ups run as for Ctrl-C);
+    return the function that restores the previous handler."""
+    import signal
+    import threading
+
+    if threading.current_thread() is not threading.main_thread():
+        return lambda: None
+
+    def handler(signum, frame):
+        raise exc_type()
+
+    old = signal.signal(signal.SIGTERM, handler)
+    return lambda: signal.signal(signal.SIGTERM, old)
+
+
+def _internal_error(e):  # pragma: no cover - internal errors
+    print(f"harbor: internal error ({type(e).__name__}: {e}). This is a bug in harbor "
+          f"{__version__}; please report it with the command and the scenario file.",
+          file=sys.stderr)
+    if os.environ.get("HARBOR_DEBUG"):
+        raise e
+    return 1
 
 
 if __name__ == "__main__":
