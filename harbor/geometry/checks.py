@@ -193,3 +193,40 @@ def at_problem(scenario, x: float, y: float) -> str | None:
 #: Farthest a point of interest may lie from the centre of the layout (m): the methods
 #: assume one constant depth and one site frame; 100 km is far beyond any harbour.
 MAX_DISTANCE = 100_000.0
+
+
+#: Largest extent of a layout (arms and points, m): the longest breakwaters are a few
+#: kilometres and a harbour study covers tens; a vertex farther than this from the rest
+#: is a typo (a dropped digit in an easting), not a harbour.
+MAX_LAYOUT_EXTENT = 100_000.0
+
+
+def stray_vertex(coord_sets):
+    """The vertex that makes a layout wider than :data:`MAX_LAYOUT_EXTENT`, if any.
+
+    Parameters
+    ----------
+    coord_sets : sequence of (where, key, array (n, 2))
+        The arms' lines and the points (m, work frame), labelled for the message.
+
+    Returns
+    -------
+    tuple or None
+        ``(where, key, problem)`` for the vertex farthest from the median of all
+        vertices when the layout spans more than :data:`MAX_LAYOUT_EXTENT`; None
+        otherwise.
+    """
+    allxy = np.concatenate([a for _, _, a in coord_sets])
+    if float(np.ptp(allxy, axis=0).max()) <= MAX_LAYOUT_EXTENT:
+        return None
+    mid = np.median(allxy, axis=0)
+    best = None
+    for where, key, a in coord_sets:
+        d = np.hypot(*(a - mid).T)
+        j = int(np.argmax(d))
+        if best is None or d[j] > best[0]:
+            best = (float(d[j]), where, key, j, len(a))
+    dist, where, key, j, n = best
+    pre = f"vertex {j + 1}: " if n > 1 else ""
+    return (where, key, f"{pre}lies {dist / 1000:.4g} km from the rest of the layout; a "
+            f"layout spans at most {MAX_LAYOUT_EXTENT / 1000:g} km (a mistyped coordinate?)")

@@ -19,8 +19,8 @@ RANGES = {
     "g": (9.7, 9.9, "m/s^2", "gravity at the Earth's surface is 9.76-9.84 m/s^2"),
     # the highest measured sea states are below 30 m (from memory); 100 m stops unit
     # slips (cm, mm) and overflowing numbers without judging a study's extremes
-    "height": (0.0, 100.0, "m", "wave height; measured sea states stay below 30 m"),
-    "limit": (0.0, 100.0, "m", "allowable wave height"),
+    "height": (0.001, 100.0, "m", "wave height; measured sea states stay below 30 m"),
+    "limit": (0.001, 100.0, "m", "allowable wave height"),
     # percentage of time of one climate row
     "percent": (0.0, 100.0, "%", "a percentage of time"),
     # wind waves and swell 1-30 s, long waves up to several minutes (common practice)
@@ -28,7 +28,7 @@ RANGES = {
     "peak_period": (0.5, 600.0, "s", "spectral peak period"),
     # Goda's s_max: 10 wind sea, 25 and 75 swell; above a few hundred the sea is
     # long-crested for any purpose (common practice)
-    "spreading": (0.0, 1000.0, "", "s_max"),
+    "spreading": (1.0, 1000.0, "", "s_max"),
     # JONSWAP peak enhancement: 1 to about 7 (common practice)
     "gamma": (1.0, 20.0, "", "JONSWAP peak enhancement"),
     "spacing": (0.01, 10_000.0, "m", "grid spacing"),
@@ -70,7 +70,7 @@ def range_problem(key: str, v: float, positive: bool = False) -> str | None:
         Its value (finite).
     positive : bool
         Whether the reader asked for a strictly positive value (a zero lower bound
-        is then open).
+        is then open); when it did not, an exact zero is always accepted.
 
     Returns
     -------
@@ -80,6 +80,8 @@ def range_problem(key: str, v: float, positive: bool = False) -> str | None:
     if key not in RANGES:
         return None
     lo, hi, unit, why = RANGES[key]
+    if v == 0 and not positive:
+        return None          # a zero where the reader allows one (a calm climate row)
     u = f" {unit}" if unit else ""
     if v < lo or v > hi or (positive and lo == 0 and v <= 0):
         low = f"more than {lo:g}" if (positive and lo == 0) else f"at least {lo:g}"

@@ -22,7 +22,7 @@ except ModuleNotFoundError:  # pragma: no cover - Python 3.10
 from harbor.errors import InputError
 from harbor.geometry.layout import Arm, Land, Layout, Point
 from harbor.geometry.site import Site, lonlat_problem, parse_crs
-from harbor.geometry.checks import arms_cross_at, encloses_area
+from harbor.geometry.checks import arms_cross_at, encloses_area, stray_vertex
 from harbor.solver.resolution import coarse_grid_problem
 from harbor.study._files import MAX_SCENARIO_BYTES, read_text
 from harbor.study._limits import (MAX_ARM_VERTICES, MAX_COORDINATE, MAX_LAND_VERTICES,
@@ -462,6 +462,10 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
     allxy = np.concatenate([a for _, _, a, _ in arms_w] +
                            [p[None, :] for _, _, p, _ in pts_w])
     size = float(np.ptp(allxy, axis=0).max())
+    stray = stray_vertex([(w, "line", a) for w, _, a, _ in arms_w]
+                         + [(w, "at", p[None, :]) for w, _, p, _ in pts_w])
+    if stray:
+        raise r.err(stray[2], stray[0], stray[1])
     tol = max(0.01, 1e-6 * size)
 
     def show_xy(p):
