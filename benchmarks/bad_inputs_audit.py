@@ -40,6 +40,7 @@ from harbor.cli import main  # noqa: E402
 BASE = (ROOT / "tests" / "test_bad_inputs.py").read_text().split('BASE = """', 1)[1] \
     .split('"""', 1)[0]
 BIG = "1" + "0" * 400
+SHOW = False
 
 
 def _sub(text, old, new):
@@ -124,14 +125,52 @@ def diagram_cases():
     for d in ["0", "180", "nan", "inf"]:
         c.append((f"--direction {d}", ["diagram", "semi-infinite", "--direction", d],
                   "refuse"))
-    c.append(("--extent inf", ["diagram", "semi-infinite", "--extent", "-inf", "-2", "4",
+    c.append(("--extent inf", ["diagram", "semi-infinite", "--extent", "-4", "-2", "inf",
                                "8"], "refuse"))
-    c.append(("--extent 1e308 span", ["diagram", "semi-infinite", "--extent", "-1e308", "-2",
+    c.append(("--extent 1e308 span", ["diagram", "semi-infinite", "--extent", "-4", "-2",
                                       "1e308", "8"], "refuse"))
     c.append(("--random --spreading nan", base + ["--width", "2", "--random", "--spreading",
                                                   "nan"], "refuse"))
     c.append(("gap --width 2 (valid)", base + ["--width", "2"], "ok"))
+    c.append(("--extent reversed", ["diagram", "semi-infinite", "--extent", "4", "-2", "-4",
+                                    "8"], "refuse"))
+    c.append(("--extent 1e6 wide", ["diagram", "semi-infinite", "--extent", "-4", "-2",
+                                    "1e6", "8"], "refuse"))
+    c.append(("--extent nan", ["diagram", "semi-infinite", "--extent", "-4", "-2",
+                               "nan", "8"], "refuse"))
+    c.append(("gap without --width", ["diagram", "gap"], "refuse"))
+    c.append(("unknown case", ["diagram", "ring"], "refuse"))
     return c
+
+
+def other_cli_cases():
+    """(name, argv after 'harbor', expect); s.toml is BASE, c.csv a valid table."""
+    return [
+        ("sweep --move nan", ["sweep", "s.toml", "--arm", "west arm", "--move", "nan", "1",
+                              "1"], "refuse"),
+        ("sweep --move inf", ["sweep", "s.toml", "--arm", "west arm", "--move", "0", "inf",
+                              "1"], "refuse"),
+        ("sweep --move 1e9 steps", ["sweep", "s.toml", "--arm", "west arm", "--move", "0",
+                                    "1e9", "1"], "refuse"),
+        ("sweep --move step 0", ["sweep", "s.toml", "--arm", "west arm", "--move", "0", "10",
+                                 "0"], "refuse"),
+        ("sweep --arm unknown", ["sweep", "s.toml", "--arm", "nowhere", "--move", "0", "10",
+                                 "5"], "refuse"),
+        ("climate --workers 0", ["climate", "s.toml", "--table", "c.csv", "--workers", "0"],
+         "refuse"),
+        ("climate --max-cases 0", ["climate", "s.toml", "--table", "c.csv", "--max-cases",
+                                   "0"], "refuse"),
+        ("climate --move inf", ["climate", "s.toml", "--table", "c.csv", "--arm", "west arm",
+                                "--move", "inf"], "refuse"),
+        ("climate --arm without --move", ["climate", "s.toml", "--table", "c.csv", "--arm",
+                                          "west arm"], "refuse"),
+        ("points --sea unknown", ["points", "s.toml", "--sea", "nope"], "refuse"),
+        ("map --sea unknown", ["map", "s.toml", "--sea", "nope", "--out", "o"], "refuse"),
+        ("map --show bogus", ["map", "s.toml", "--show", "bogus"], "refuse"),
+        ("unknown command", ["bogus"], "refuse"),
+        ("no command", [], "refuse"),
+        ("points --at one number", ["points", "s.toml", "--at", "1"], "refuse"),
+    ]
 
 
 def climate_cases():
@@ -151,6 +190,17 @@ def climate_cases():
         "empty": "",
         "missing column": "height,period,percent\n1,7,50\n",
         "BOM, valid": "\ufeff" + h + "1.0,7,10,100\n",
+        "height -1": h + "-1,7,10,50\n",
+        "percent -5": h + "1.0,7,10,-5\n",
+        "spreading 0": "height,period,from,percent,spreading\n1.0,7,10,50,0\n",
+        "spreading 1e-6": "height,period,from,percent,spreading\n1.0,7,10,50,1e-6\n",
+        "text in a cell": h + "1.0,seven,10,50\n",
+        "too many cells": h + "1.0,7,10,50,9\n",
+        "duplicated column": "height,period,from,percent,percent\n1,7,10,50,50\n",
+        "unbalanced quote": h + '1.0,"7,10,50\n',
+        "percent 1e-300 (valid)": h + "1.0,7,10,100\n0.5,7,20,1e-300\n",
+        "duplicates within 100 % (valid, warned)": h + "1.0,7,10,40\n1.0,7,10,40\n",
+        "period 600.5": h + "1.0,600.5,10,50\n",
     }
     c = [(k, v, [], "ok" if "valid" in k else "refuse") for k, v in rows.items()]
     many = h + "".join(f"1.0,{5 + i * 0.001:.3f},10,0.01\n" for i in range(3000))
@@ -221,6 +271,9 @@ def audit_inproc(tmp):
 
     def record(set_, name, res, verdict):
         table.setdefault(set_, []).append(verdict)
+        if SHOW:
+            line = (res.err.strip().splitlines() or [""])[-1]
+            print(f"[{set_[:8]}] {name}: exit {res.code}: {line[:150]}")
         if verdict != "clear":
             details.append((set_, name, res.code, verdict, res.err.strip()[:160]))
 
@@ -280,6 +333,35 @@ def audit_inproc(tmp):
                 else ["map", "s.toml", "--out", out, "--quiet"])
         res = run_inproc(argv, d)
         record("CLI arguments, special files", name, res, classify(res, "refuse", code))
+    for name, argv, expect in other_cli_cases():
+        d = Path(tempfile.mkdtemp(dir=tmp))
+        (d / "s.toml").write_text(BASE)
+        (d / "c.csv").write_text("height,period,from,percent\n1.0,7,10,100\n")
+        before = _snapshot(d)
+        res = run_inproc(argv, d)
+        res.written = sorted(_snapshot(d) - before)
+        record("CLI arguments, special files", name, res, classify(res, expect))
+    for name, kind in special.items():
+        if "valid" in name or kind in ("bom", "latin"):
+            continue
+        d = Path(tempfile.mkdtemp(dir=tmp))
+        (d / "s.toml").write_text(BASE)
+        p = d / "c.csv"
+        if kind == "fifo":
+            os.mkfifo(p)
+        elif kind == "/dev/zero":
+            p = Path("/dev/zero")
+        elif kind == "loop":
+            os.symlink(p, p)
+        elif kind == "dir":
+            p.mkdir()
+        elif kind == "huge":
+            with open(p, "wb") as fh:
+                fh.truncate(17 * 2**20)
+        before = _snapshot(d)
+        res = run_inproc(["climate", "s.toml", "--table", str(p), "--out", "out"], d)
+        res.written = sorted(_snapshot(d) - before)
+        record("climate CSV", f"--table {name}", res, classify(res, "refuse"))
     for name, text, tail, expect in climate_cases():
         d = Path(tempfile.mkdtemp(dir=tmp))
         (d / "s.toml").write_text(BASE)
@@ -377,7 +459,10 @@ def audit_faults(tmp):
 def main_():
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--no-faults", action="store_true")
+    ap.add_argument("--show", action="store_true", help="print each case's last stderr line")
     args = ap.parse_args()
+    global SHOW
+    SHOW = args.show
     with tempfile.TemporaryDirectory() as tmp:
         table, details = audit_inproc(tmp)
         if not args.no_faults:

@@ -23,6 +23,8 @@ _FAR = 1e6  # arms this long (in wavelengths) act as semi-infinite
 #: Widest gap of a diagram (B/L): design manuals stop near B/L = 5; beyond a few tens of
 #: wavelengths each head acts alone (use the semi-infinite diagram for each).
 MAX_DIAGRAM_WIDTH = 50.0
+#: Largest side of a diagram's extent (wavelengths).
+MAX_DIAGRAM_EXTENT = 200.0
 #: Coarsest diagram step (wavelengths): four points per wavelength still show the crests.
 MAX_DIAGRAM_RESOLUTION = 0.25
 #: Largest diagram (grid points) for a regular sea and for a random sea, whose points each
@@ -67,7 +69,8 @@ def diagram_grid(case="semi-infinite", width=None, extent=None, resolution=None,
     ------
     harbor.errors.InputError
         With ``key`` the argument's name: a missing, non-finite, non-positive or too
-        wide ``width``; a non-finite or empty ``extent``; a non-finite, non-positive or
+        wide ``width``; a non-finite or empty ``extent``, or one with a side over
+        :data:`MAX_DIAGRAM_EXTENT`; a non-finite, non-positive or
         too coarse ``resolution``; a grid of more than :data:`MAX_DIAGRAM_POINTS`
         points (:data:`MAX_DIAGRAM_POINTS_RANDOM` for random seas).
     """
@@ -92,6 +95,11 @@ def diagram_grid(case="semi-infinite", width=None, extent=None, resolution=None,
     if not (extent[0] < extent[2] and extent[1] < extent[3]):
         raise _diagram_error("must be XMIN YMIN XMAX YMAX with XMIN < XMAX and YMIN < YMAX",
                              "extent")
+    side = max(extent[2] - extent[0], extent[3] - extent[1])
+    if side > MAX_DIAGRAM_EXTENT:
+        raise _diagram_error(f"spans {side:.4g} wavelengths, more than "
+                             f"{MAX_DIAGRAM_EXTENT:g}: a diagram shows the near field of the "
+                             "breakwater", "extent")
     if resolution is None:
         resolution = min(max((extent[2] - extent[0]) / 200.0, 0.02), 0.1)
         if kind == "random":
@@ -103,14 +111,16 @@ def diagram_grid(case="semi-infinite", width=None, extent=None, resolution=None,
         raise _diagram_error(f"{resolution:g} wavelengths is coarser than "
                              f"{MAX_DIAGRAM_RESOLUTION:g}: the diagram could not show the "
                              "crests", "resolution")
-    nx = math.floor((extent[2] - extent[0]) / resolution) + 1
-    ny = math.floor((extent[3] - extent[1]) / resolution) + 1
+    # in floating point: an extent of 1e308 wavelengths must not overflow an integer
+    nx = (extent[2] - extent[0]) / resolution + 1.0
+    ny = (extent[3] - extent[1]) / resolution + 1.0
     most = MAX_DIAGRAM_POINTS_RANDOM if kind == "random" else MAX_DIAGRAM_POINTS
-    if nx * ny > most:
+    if not nx * ny <= most:
         fit = math.sqrt((extent[2] - extent[0]) * (extent[3] - extent[1]) / most)
-        raise _diagram_error(f"{resolution:g} wavelengths over the extent gives {nx:,} x "
-                             f"{ny:,} points, more than {most:,}; use {fit:.2g} or more "
-                             "(or a smaller extent)", "resolution")
+        how = (f"use a step of {fit:.2g} or more, or a smaller extent"
+               if fit <= MAX_DIAGRAM_RESOLUTION else "use a smaller extent")
+        raise _diagram_error(f"{resolution:g} wavelengths over the extent gives {nx:.3g} x "
+                             f"{ny:.3g} points, more than {most:,}; {how}", "resolution")
     return extent, resolution
 
 

@@ -249,6 +249,9 @@ def check_case_count(table, limit=MAX_CLIMATE_CASES) -> str:
     InputError
         When M > ``limit`` (key ``--max-cases``), naming M and the estimate.
     """
+    if isinstance(limit, bool) or not isinstance(limit, int) or limit < 1:
+        raise InputError(f"must be a whole number of at least 1, got {limit!r}",
+                         key="--max-cases")
     n = case_count(table)
     est = n * SECONDS_PER_CASE
     when = (f"{est:.0f} s" if est < 120 else f"{est / 60:.0f} min" if est < 7200

@@ -160,7 +160,10 @@ class _Reader:
         if f is None:
             raise self.err(f"must be a number, got {_show(v)}", where, key)
         if not math.isfinite(f):
-            raise self.err(f"must be a finite number, got {_show(v)}", where, key)
+            what = (f"is too large to be a number here (an integer of {len(str(abs(v)))} "
+                    "digits)" if isinstance(v, int) else
+                    f"must be a finite number, got {_show(v)}")
+            raise self.err(what, where, key)
         v = f
         if positive and v <= 0:
             raise self.err(f"must be positive, got {v:g}", where, key)
