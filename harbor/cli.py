@@ -1,7 +1,9 @@
 """The ``harbor`` command: thin wrappers over the Python API (parse, call, print).
 
 Exit codes: 0 success; 2 bad input (one line on stderr naming the file, the key and the
-problem); 1 internal error (a short message asking for a report).
+problem); 1 internal error (a short message asking for a report); 3 the output location
+cannot be written (permission, read-only, in use by another run); 4 disk full; 130
+interrupted; 143 terminated (docs/errors.md).
 """
 
 from __future__ import annotations

@@ -9,8 +9,6 @@ are facts of the trade (common practice) or physical limits, cited in
 
 import math
 import os
-import re
-import stat
 from pathlib import Path
 
 import numpy as np
