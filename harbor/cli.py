@@ -467,8 +467,6 @@ def cmd_climate(args):
     res = climate_downtime(sc, table, method=args.method, workers=args.workers,
                            progress=_progress_printer(args.quiet))
     written = write_climate(res, args.out, title=title)
-    print(f"{res.downtime.attrs['table_rows']} climate rows, "
-          f"{res.downtime.attrs['cases']} distinct (period, direction, spreading) cases")
     print(downtime_text(res))
     print(f"wrote {', '.join(str(p) for p in written)}")
     _print_warnings([w for w in res.warnings if w != pw])
