@@ -438,6 +438,28 @@ def audit_faults(tmp):
         out, err = p.communicate(timeout=120)
         left = sorted(x.name for x in d.iterdir() if x.name != "s.toml")
         rec(name, Outcome(p.returncode, "", err, left, 0), want)
+    for name, argv, after in [
+            ("SIGTERM while solving a map", ["map", "s.toml", "--out", "out", "--quiet"], 1.0),
+            ("SIGTERM during a climate run (threads)",
+             ["climate", "s.toml", "--table", "c.csv", "--out", "out", "--quiet"], 2.0)]:
+        d = Path(tempfile.mkdtemp(dir=tmp))
+        (d / "s.toml").write_text(BASE)
+        (d / "c.csv").write_text("height,period,from,percent\n" + "".join(
+            f"1.0,{5 + 0.5 * i:.1f},{(10 * i) % 360},2.5\n" for i in range(40)))
+        p = subprocess.Popen([sys.executable, "-m", "harbor", *argv], cwd=d, env=env,
+                             stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+        # the run has started once it holds its output location (before solving); a
+        # SIGTERM during the imports before that ends the process by the default action,
+        # before anything could be written
+        t0 = time.monotonic()
+        while p.poll() is None and time.monotonic() - t0 < 120 and not any(
+                x.name.startswith(".harbor-lock-") for x in d.iterdir()):
+            time.sleep(0.01)
+        time.sleep(after)
+        p.send_signal(signal.SIGTERM)
+        out, err = p.communicate(timeout=120)
+        left = sorted(x.name for x in d.iterdir() if x.name not in ("s.toml", "c.csv"))
+        rec(name, Outcome(p.returncode, "", err, left, 0), 143)
     # two runs at once into one folder
     d = Path(tempfile.mkdtemp(dir=tmp))
     (d / "s.toml").write_text(BASE)
