@@ -60,6 +60,32 @@ output of `harbor map` into the folder, then prints the berth table.
 """
 
 
+SWEEP_EXAMPLE = """example:
+  harbor sweep scenarios/demo.toml --arm "west arm" --move -40 60 10 --out screening
+  harbor sweep scenarios/demo.toml --arm "east arm" --move 0 50 5 --sea "storm N"
+
+Moves the free head of the arm along its end segment by each distance from MIN to MAX
+in steps of STEP metres (positive lengthens the arm and narrows the entrance), solves
+every sea state (or --sea) at the scenario's points, and writes sweep-<arm>.csv
+(columns move,entrance_width,sea,point,kd,height,limit,ok) and sweep-<arm>.png. Moves
+that would make arms cross, put the head in land or shorten the arm past the other end
+of its end segment are reported and skipped.
+"""
+
+CLIMATE_EXAMPLE = """example:
+  harbor climate scenarios/demo.toml --table scenarios/demo-climate.csv --out screening
+  harbor climate scenarios/demo.toml --table scenarios/demo-climate.csv \\
+      --arm "west arm" --move 30 --out screening-60m
+
+The table is CSV with a header row: height,period,from,percent[,spreading]
+(H1/3 in m, T1/3 in s, direction the waves come from in degrees true, percentage of
+time; s_max, default 10). Each row is a directional random sea. Writes downtime.csv
+(point,limit,total and one column per 30-degree sector, by its centre 000 ... 330),
+climate-rows.csv (every row at every point) and downtime.png. With --arm and --move
+the head of that arm is first moved as in `harbor sweep`.
+"""
+
+
 class _Parser(argparse.ArgumentParser):
     def error(self, message):  # one line, exit 2 (argparse's own convention)
         self.exit(2, f"harbor: {message} (see 'harbor {self.prog.split()[-1]} --help')\n"
@@ -323,8 +349,6 @@ def add_sweep_parser(subparsers):
     argparse.ArgumentParser
         The ``sweep`` parser (its ``func`` default is :func:`cmd_sweep`).
     """
-    from harbor.study.sweep import SWEEP_EXAMPLE
-
     sp = subparsers.add_parser(
         "sweep", help="entrance-width sweep: move one head, heights at the points",
         epilog=SWEEP_EXAMPLE + "\n" + EPILOG_TAIL,
@@ -395,8 +419,6 @@ def add_climate_parser(subparsers):
     argparse.ArgumentParser
         The ``climate`` parser (its ``func`` default is :func:`cmd_climate`).
     """
-    from harbor.study.climate import CLIMATE_EXAMPLE
-
     sp = subparsers.add_parser(
         "climate", help="berth downtime (%% of time above the limit) from a wave climate table",
         epilog=CLIMATE_EXAMPLE + "\n" + EPILOG_TAIL,

@@ -41,18 +41,6 @@ PERCENT_TOLERANCE = 1.0
 #: threads is not worth starting for two or three).
 PARALLEL_FROM = 4
 
-CLIMATE_EXAMPLE = """example:
-  harbor climate scenarios/demo.toml --table scenarios/demo-climate.csv --out screening
-  harbor climate scenarios/demo.toml --table scenarios/demo-climate.csv \\
-      --arm "west arm" --move 30 --out screening-60m
-
-The table is CSV with a header row: height,period,from,percent[,spreading]
-(H1/3 in m, T1/3 in s, direction the waves come from in degrees true, percentage of
-time; s_max, default 10). Each row is a directional random sea. Writes downtime.csv
-(point,limit,total and one column per 30-degree sector, by its centre 000 ... 330),
-climate-rows.csv (every row at every point) and downtime.png. With --arm and --move
-the head of that arm is first moved as in `harbor sweep`.
-"""
 
 
 class ClimateResult(NamedTuple):

@@ -35,17 +35,6 @@ MIN_GAP = 1.0
 #: Most positions one sweep may ask for (each is a full solve of every sea state).
 MAX_MOVES = 400
 
-SWEEP_EXAMPLE = """example:
-  harbor sweep scenarios/demo.toml --arm "west arm" --move -40 60 10 --out screening
-  harbor sweep scenarios/demo.toml --arm "east arm" --move 0 50 5 --sea "storm N"
-
-Moves the free head of the arm along its end segment by each distance from MIN to MAX
-in steps of STEP metres (positive lengthens the arm and narrows the entrance), solves
-every sea state (or --sea) at the scenario's points, and writes sweep-<arm>.csv
-(columns move,entrance_width,sea,point,kd,height,limit,ok) and sweep-<arm>.png. Moves
-that would make arms cross, put the head in land or shorten the arm past the other end
-of its end segment are reported and skipped.
-"""
 
 
 class MoveRejected(ValueError):
