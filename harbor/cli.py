@@ -32,7 +32,9 @@ POINTS_EXAMPLE = """example:
   harbor points scenarios/demo.toml --at 302900 4986150 --at 302980 4986100 --sea "swell NW"
   harbor points scenarios/demo.toml --json
 
-CSV columns: sea,point,x,y,kd,height (+ period_ratio when a random sea is listed);
+CSV columns: sea,point,x,y,kd,height (+ period_ratio when a random sea is listed), then
+limit,ok,valid (valid is false where the method is outside its measured validity);
+warnings and the caution go to stderr;
 x, y in the scenario's CRS (easting or longitude first).
 """
 
@@ -117,38 +119,46 @@ def _load(path):
 def _select_sea(scenario, name):
     if name is None:
         return None
-    names = [s.name for s in scenario.seas]
-    if name not in names:
-        import difflib
-
-        near = difflib.get_close_matches(name, names, n=1)
-        hint = f" (did you mean '{near[0]}'?)" if near else f" (known: {', '.join(names)})"
-        raise InputError(f"no sea state named '{name}'{hint}", file=scenario.path, key="--sea")
-    return name
+    return scenario.sea(name, key="--sea").name
 
 
 def cmd_check(args):
-    from harbor.solver.assemble import solve
+    from harbor.solver.assemble import grid_coordinates, notices, solve
 
     sc = _load(args.scenario)
     ds = solve(sc, grid=False)
-    warnings = [w for w in ds.attrs["warnings"].split("\n") if w]
     site = sc.site
     print(f"{args.scenario}: valid — {len(sc.layout.arms)} arm(s), {len(sc.layout.lands)} land "
           f"polygon(s), {len(sc.seas)} sea state(s), {len(sc.points)} point(s)")
     print(f"  CRS {site.crs_code}; meridian convergence at the site {site.convergence_deg:+.3f} deg "
           f"(grid bearing = true bearing - convergence); depth {site.depth:g} m")
     if sc.grid is not None:
-        from harbor.solver.assemble import grid_coordinates
-
         gx, gy = grid_coordinates(sc.grid)
         print(f"  grid {gx.size} x {gy.size} points at {sc.grid.spacing:g} m")
     print("methods:")
     for name, method, L in zip(ds.sea.values, ds.sea_method.values, ds.sea_wavelength.values):
         print(f"  - {name}: {method} (L = {L:.1f} m)")
-    _print_warnings(warnings)
+    _print_notices(ds, notices)
     print(f"note: {CAUTION_SHORT}")
     return 0
+
+
+def _print_notices(ds, notices, file=None):
+    """The warnings of a result, grouped: every sea state first, then each one's own."""
+    items = list(dict.fromkeys(notices(ds)))
+    if not items:
+        return
+    file = file or sys.stdout
+    print("warnings:", file=file)
+    for n in items:
+        if n.sea is None:
+            print(f"  - {n.text}", file=file)
+    for s in [str(v) for v in ds.sea.values]:
+        own = [n for n in items if n.sea == s]
+        if own:
+            print(f"  sea state '{s}':", file=file)
+            for n in own:
+                print(f"    - {n.text}", file=file)
 
 
 def _print_warnings(warnings):
@@ -171,86 +181,54 @@ def _parse_at(values):
     return pts
 
 
-def points_table(scenario, at=None, sea=None, method="auto"):
-    """Rows of ``harbor points``: dicts with sea, point, x, y, kd, height[, period_ratio].
-
-    Parameters
-    ----------
-    scenario : harbor.study.scenario.Scenario
-    at : sequence of (name, x, y), optional
-        Points in the scenario's CRS; default the scenario's named points.
-    sea : str, optional
-        One sea state's name.
-    method : str
-        Method override (see :func:`harbor.solve`).
-
-    Returns
-    -------
-    rows : list of dict
-    has_random : bool
-    """
-    from harbor.solver.assemble import solve
-    from harbor.study.scenario import Scenario
-
-    if at:
-        sc = Scenario(path=scenario.path, title=scenario.title, site=scenario.site,
-                      layout=scenario.layout, seas=scenario.seas, points=(), grid=scenario.grid)
-        _check_points(scenario, at)
-    else:
-        sc = scenario
-    ds = solve(sc, sea=sea, points=at, grid=False, method=method)
-    site = scenario.site
-    cx, cy = site.from_work(ds.point_x.values, ds.point_y.values)
-    has_random = bool((ds.sea_kind.values == "random").any())
-    rows = []
-    for i, s in enumerate(ds.sea.values):
-        for j, p in enumerate(ds.point.values):
-            row = dict(sea=str(s), point=str(p), x=float(cx[j]), y=float(cy[j]),
-                       kd=float(ds.point_kd.values[i, j]), height=float(ds.point_height.values[i, j]))
-            if has_random:
-                r = float(ds.point_period_ratio.values[i, j])
-                row["period_ratio"] = None if math.isnan(r) else r
-            rows.append(row)
-    return rows, has_random
-
-
-def _check_points(scenario, at):
-    import numpy as np
-
-    from harbor.geometry.site import lonlat_problem
-
-    site = scenario.site
-    for name, x, y in at:
-        if site.is_lonlat:
-            prob = lonlat_problem(x, y)
-            if prob:
-                raise InputError(prob, file=scenario.path, key="--at")
-        wx, wy = site.to_work(np.array([x]), np.array([y]))
-        if scenario.layout.in_land(wx, wy)[0]:
-            raise InputError(f"point {x:g} {y:g} lies on land", file=scenario.path, key="--at")
+#: CSV of ``harbor points``: the contract columns, then the verdict columns.
+POINTS_COLUMNS = ("sea", "point", "x", "y", "kd", "height")
+VERDICT_COLUMNS = ("limit", "ok", "valid")
 
 
 def cmd_points(args):
+    from harbor.outputs.read import coordinate_digits
+    from harbor.solver.assemble import notices, points_table
+
     sc = _load(args.scenario)
     sea = _select_sea(sc, args.sea)
     at = _parse_at(args.at)
-    rows, has_random = points_table(sc, at=at, sea=sea, method=args.method)
+    rows, ds = points_table(sc, at=at, sea=sea, method=args.method)
+    has_random = bool((ds.sea_kind.values == "random").any())
+    # the warnings and the caution go to stderr, so stdout stays machine-readable
+    _print_notices(ds, notices, file=sys.stderr)
+    print(f"note: {CAUTION_SHORT}", file=sys.stderr)
     if args.json:
-        print(json.dumps({"crs": sc.site.crs_code, "rows": rows, "cautions": caution_text()},
-                         indent=2))
+        items = list(dict.fromkeys(notices(ds)))
+        print(json.dumps({
+            "crs": sc.site.crs_code,
+            "method": {str(s): str(m) for s, m in zip(ds.sea.values, ds.sea_method.values)},
+            "rows": rows,
+            "warnings": [{"code": n.code, "text": n.text, "sea": n.sea, "point": n.point,
+                          "level": n.level} for n in items],
+            "cautions": caution_text()}, indent=2))
         return 0
-    cols = ["sea", "point", "x", "y", "kd", "height"] + (["period_ratio"] if has_random else [])
+    cols = list(POINTS_COLUMNS) + (["period_ratio"] if has_random else []) + list(VERDICT_COLUMNS)
     import csv
 
+    digits = coordinate_digits(ds)
     w = csv.writer(sys.stdout, lineterminator="\n")
     w.writerow(cols)
     for r in rows:
         out = []
         for c in cols:
             v = r.get(c)
-            if isinstance(v, float):
-                out.append(f"{v:.4f}" if c in ("kd", "period_ratio") else
-                           (f"{v:.3f}" if c == "height" else f"{v:.8g}" if sc.site.is_lonlat else f"{v:.2f}"))
+            if isinstance(v, bool):
+                out.append("true" if v else "false")
+            elif isinstance(v, float):
+                if not math.isfinite(v):
+                    out.append("")
+                elif c in ("kd", "period_ratio"):
+                    out.append(f"{v:.4f}")
+                elif c in ("height", "limit"):
+                    out.append(f"{v:.3f}")
+                else:
+                    out.append(f"{v:.{digits}f}")
             else:
                 out.append("" if v is None else v)
         w.writerow(out)
@@ -262,12 +240,12 @@ def _run_map(scenario, out, sea=None, show="kd", method="auto", quiet=False):
     from harbor.solver.assemble import solve
 
     ds = solve(scenario, sea=sea, method=method, progress=_progress_printer(quiet))
-    written = write_all(ds, scenario, out, show=show)
+    written = write_all(ds, out, show=show)
+    # the table ends with the warnings (grouped by sea state) and the cautions: once
     print(point_table(ds))
-    print(f"\nwrote {len(written)} files to {out}:")
+    print(f"wrote {len(written)} files to {out}:")
     for p in written:
         print(f"  {p}")
-    _print_warnings([w for w in ds.attrs["warnings"].split("\n") if w])
     return 0
 
 

@@ -77,8 +77,13 @@ def test_points_csv_header_and_rows(small, capsys):
     code, out, err = run(["points", str(small)], capsys)
     assert code == 0, err
     rows = list(csv.reader(io.StringIO(out)))
-    assert rows[0] == ["sea", "point", "x", "y", "kd", "height"]
+    # DESIGN.md sect. 6: the contract columns first, the verdict columns after them
+    assert rows[0] == ["sea", "point", "x", "y", "kd", "height", "limit", "ok", "valid"]
     assert rows[1][0] == "swell" and rows[1][1] == "quay"
+    assert float(rows[1][6]) == pytest.approx(0.4)
+    assert rows[1][7] == ("true" if float(rows[1][5]) <= 0.4 else "false")
+    # the warnings and the caution go to stderr, never into the CSV
+    assert "reflection" in err and "preliminary" in err.lower()
     assert float(rows[1][2]) == pytest.approx(500150.0)
     assert float(rows[1][5]) == pytest.approx(1.2 * float(rows[1][4]), abs=2e-3)
 
@@ -91,6 +96,8 @@ def test_points_at_and_json(small, capsys):
     assert [r["point"] for r in data["rows"]] == ["at1", "at2"]
     assert data["rows"][0]["x"] == pytest.approx(500150.0)
     assert "preliminary" in data["cautions"].lower()
+    assert set(data["method"]) == {"swell"} and data["method"]["swell"]
+    assert any(w["code"] == "reflection-neglected" for w in data["warnings"])
     # The entrance is a classic one (collinear heads on y = 6300200, gap 60 m, centre
     # x = 500100); the sea from 10 deg true travels at 100 deg in the gap's frame
     # (basin side = local y > 0); convergence ~0 on the zone's central meridian.
@@ -108,7 +115,8 @@ def test_random_seas_add_period_ratio_column(capsys):
     code, out, _ = run(["points", DEMO, "--sea", "storm N"], capsys)
     assert code == 0
     rows = list(csv.reader(io.StringIO(out)))
-    assert rows[0] == ["sea", "point", "x", "y", "kd", "height", "period_ratio"]
+    assert rows[0] == ["sea", "point", "x", "y", "kd", "height", "period_ratio", "limit", "ok",
+                       "valid"]
     assert all(float(r[6]) > 0 for r in rows[1:])
 
 
@@ -157,7 +165,9 @@ def test_map_outputs_agree_with_points(small, tmp_path, capsys):
     assert code == 0, err
     names = sorted(p.name for p in out_dir.iterdir())
     assert names == ["grid.nc", "isolines-swell.geojson", "map-swell.png", "points.csv",
-                     "sheet-swell.pdf"]
+                     "report.pdf", "sheet-swell.pdf"]
+    # the warning block is printed once (it ends the berth table)
+    assert out.count("reflection from quays, shores") == 1
     ds = xr.open_dataset(out_dir / "grid.nc")
     kd = ds["kd"].isel(sea=0) if "sea" in ds["kd"].dims else ds["kd"]
     # pick a few wet grid nodes and ask `harbor points` for them
