@@ -359,7 +359,8 @@ def cmd_sweep(args):
     int
         0; user mistakes raise :class:`harbor.errors.InputError`.
     """
-    from harbor.study.sweep import find_arm, move_range, sweep, sweep_text, verdict, write_sweep
+    from harbor.outputs.studies import sweep_text, write_sweep
+    from harbor.study.sweep import find_arm, move_range, sweep
 
     sc = _load(args.scenario)
     sea = _select_sea(sc, args.sea)
@@ -377,7 +378,7 @@ def cmd_sweep(args):
     print(f"{len(widths)} position(s) of the head of '{args.arm}', entrance width "
           f"{widths.min():.1f} to {widths.max():.1f} m")
     print(sweep_text(table))
-    print(verdict(table))
+    print(table.attrs["verdict"])
     print(f"wrote {', '.join(str(p) for p in written)}")
     _print_warnings(table.attrs["warnings"])
     print(f"note: {CAUTION_SHORT}")
@@ -433,8 +434,8 @@ def cmd_climate(args):
         0; user mistakes raise :class:`harbor.errors.InputError`.
     """
     from harbor.geometry.entrance import nearest_heads
-    from harbor.study.climate import (climate_downtime, downtime_text, percent_warning,
-                                      read_climate, write_climate)
+    from harbor.outputs.studies import downtime_text, write_climate
+    from harbor.study.climate import climate_downtime, percent_warning, read_climate
     from harbor.study.sweep import MoveRejected, move_head
 
     sc = _load(args.scenario)

@@ -36,7 +36,6 @@ MIN_GAP = 1.0
 MAX_MOVES = 400
 
 
-
 class MoveRejected(ValueError):
     """A head position that the layout cannot take (the reason is the message)."""
 
@@ -44,9 +43,10 @@ class MoveRejected(ValueError):
 # --------------------------------------------------------------------------- geometry
 
 def _tolerance(layout) -> float:
-    # the same rule as the scenario reader: max(1 cm, 1e-6 x layout size)
-    b = layout.bounds()
-    return max(0.01, 1e-6 * max(b[2] - b[0], b[3] - b[1]))
+    # the scenario reader's rule (harbor.geometry.checks.tolerance)
+    from harbor.geometry.checks import layout_tolerance
+
+    return layout_tolerance(layout)
 
 
 def find_arm(scenario, name):
@@ -144,8 +144,12 @@ def move_head(scenario, arm, move):
     line[h] = new_head
     new_arm = dataclasses.replace(old, line=line)
     geom = shapely.LineString(line)
-    if not geom.is_simple:
-        raise MoveRejected("the arm would cross itself")
+    from harbor.geometry import checks
+
+    try:
+        checks.clean_arm_line(line, tol)
+    except checks.GeometryError:
+        raise MoveRejected("the arm would cross itself") from None
     land = layout.land_union()
     p = shapely.Point(new_head)
     if not land.is_empty and land.intersects(p):
@@ -161,9 +165,21 @@ def move_head(scenario, arm, move):
             if gap < MIN_GAP:
                 raise MoveRejected(f"the arm would pass {gap:.2f} m from '{a.name}', less "
                                    f"than {MIN_GAP:g} m (entrance closed)")
-    for pt in scenario.points:
-        if geom.distance(shapely.Point(pt.at)) <= tol:
-            raise MoveRejected(f"the arm would run over the point '{pt.name}'")
+    arms_new = tuple(new_arm if k == i else a for k, a in enumerate(layout.arms))
+    try:
+        checks.check_crossings([np.asarray(a.line, float) for a in arms_new], tol)
+    except checks.GeometryError as e:
+        raise MoveRejected(f"the arm would cross or touch '{arms_new[e.other].name}'"
+                           if e.index == i else
+                           f"the arm would cross or touch '{arms_new[e.index].name}'") from None
+    if scenario.points:
+        # the rule of the scenario reader and of solve(points=): no point on an arm
+        probs = checks.point_problems(dataclasses.replace(layout, arms=arms_new),
+                                      [p.at[0] for p in scenario.points],
+                                      [p.at[1] for p in scenario.points], tol)
+        for pt, prob in zip(scenario.points, probs):
+            if prob is not None and "arm" in prob and f"'{old.name}'" in prob:
+                raise MoveRejected(f"the arm would run over the point '{pt.name}'")
     others = [shapely.LineString(a.line) for a in layout.arms if a is not old]
     dists = [g.distance(p) for g in others]
     if not land.is_empty:
@@ -172,8 +188,7 @@ def move_head(scenario, arm, move):
     if width < MIN_GAP:
         raise MoveRejected(f"the head would be {width:.2f} m from another arm or land, "
                            f"less than {MIN_GAP:g} m (entrance closed)")
-    arms = tuple(new_arm if k == i else a for k, a in enumerate(layout.arms))
-    moved = dataclasses.replace(scenario, layout=dataclasses.replace(layout, arms=arms))
+    moved = dataclasses.replace(scenario, layout=dataclasses.replace(layout, arms=arms_new))
     return moved, width
 
 
@@ -281,9 +296,9 @@ def sweep(scenario, arm, moves, sea=None, method="auto", progress=None):
         else:
             ds = assemble.solve(moved, sea=sea, grid=False, method=method)
             methods[m] = [str(v) for v in ds.sea_method.values]
-            for w in ds.attrs["warnings"].split("\n"):
-                if w and w not in warnings:
-                    warnings.append(w)
+            for w in assemble.notices(ds, sea=sea):
+                if w.text not in warnings:
+                    warnings.append(w.text)
             lim = ds.point_limit.values
             for a, s in enumerate(ds.sea.values):
                 for b, p in enumerate(ds.point.values):
@@ -297,7 +312,10 @@ def sweep(scenario, arm, moves, sea=None, method="auto", progress=None):
     df = pd.DataFrame(rows, columns=SWEEP_COLUMNS)
     df["ok"] = df["ok"].astype("boolean")
     df.attrs.update(arm=arm, skipped=skipped, methods=methods, warnings=warnings,
-                    cautions=CAUTION_SHORT)
+                    cautions=CAUTION_SHORT, title=scenario.title,
+                    scenario=str(scenario.path or ""))
+    df.attrs["widest"] = widest_ok(df) if not df.empty else None
+    df.attrs["verdict"] = verdict(df)
     return df
 
 
@@ -388,166 +406,12 @@ def sweep_summary(table):
     return out[list(dict.fromkeys(table["point"]))]
 
 
-def sweep_text(table) -> str:
-    """The terminal table of ``harbor sweep``.
-
-    Parameters
-    ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
-
-    Returns
-    -------
-    str
-        One line per head position: move (m), entrance width (m) and, per point, the
-        highest height over the sea states (m), marked ``*`` above the point's limit.
-    """
-    summ = sweep_summary(table)
-    limits = table.groupby("point", sort=False)["limit"].first()
-    names = list(summ.columns)
-    w = max(10, *(min(len(n), 16) + 2 for n in names))
-    head = f"{'move':>8}{'width':>9}  " + "".join(f"{n[:16]:>{w}}" for n in names)
-    lim = f"{'(m)':>8}{'(m)':>9}  " + "".join(
-        f"{'limit ' + format(limits[n], '.2f') if not math.isnan(limits[n]) else 'no limit':>{w}}"
-        for n in names)
-    lines = ["highest wave height over the sea states (m); * above the point's limit",
-             head, lim, "-" * len(head)]
-    for (m, width), r in summ.iterrows():
-        cells = []
-        for n in names:
-            over = not math.isnan(limits[n]) and r[n] > limits[n]
-            cells.append(f"{format(r[n], '.2f') + ('*' if over else ' '):>{w}}")
-        lines.append(f"{format(m, '+g') if m else '0':>8}{width:>9.1f}  " + "".join(cells))
-    return "\n".join(lines)
 
 
-def sweep_csv_text(table) -> str:
-    """CSV text of a sweep table: columns :data:`SWEEP_COLUMNS`, no comment lines.
+def __getattr__(name):
+    # the tables, CSV text and charts moved to harbor.outputs.studies; old imports work
+    from harbor.outputs import studies
 
-    Parameters
-    ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
-
-    Returns
-    -------
-    str
-        ``ok`` is written ``true``/``false`` and left empty (as ``limit``) for points
-        without a limit, like ``points.csv``; lengths in m, 6 significant digits.
-
-    References
-    ----------
-    .. [1] Shafranovich, Y. (2005). Common Format and MIME Type for Comma-Separated
-       Values (CSV) Files. IETF RFC 4180.
-    """
-    out = table.copy()
-    out["ok"] = ["" if pd.isna(v) else ("true" if v else "false") for v in table["ok"]]
-    buf = io.StringIO()
-    out.to_csv(buf, index=False, columns=SWEEP_COLUMNS, lineterminator="\n",
-               float_format="%.6g", na_rep="")
-    return buf.getvalue()
-
-
-def plot_sweep(table, path, title=None, dpi=150):
-    """Write a PNG of wave height against entrance width.
-
-    Parameters
-    ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
-    path : str or os.PathLike
-        Output PNG; written atomically.
-    title : str, optional
-        First title line (default the arm's name).
-    dpi : int
-
-    Returns
-    -------
-    pathlib.Path
-
-    Notes
-    -----
-    One colour per point, one line style per sea state; each point's limit is a
-    dashed horizontal line in its colour; the widest passing width (if any) is marked;
-    the short caution is printed under the chart.
-    """
-    from harbor.outputs._atomic import atomic_path
-    from harbor.outputs.maps import new_figure, wrap_to
-
-    fig = new_figure((10.0, 6.2))
-    ax = fig.add_axes((0.08, 0.2, 0.62, 0.7))
-    colours = ["#0072b2", "#d55e00", "#009e73", "#cc79a7", "#e69f00", "#56b4e9",
-               "#000000", "#f0e442"]
-    styles = ["-", "--", "-.", ":"]
-    markers = ["o", "s", "^", "D", "v"]
-    points = list(dict.fromkeys(table["point"]))
-    seas = list(dict.fromkeys(table["sea"]))
-    for a, p in enumerate(points):
-        c = colours[a % len(colours)]
-        for b, s in enumerate(seas):
-            sub = table[(table["point"] == p) & (table["sea"] == s)].sort_values(
-                "entrance_width")
-            ax.plot(sub["entrance_width"], sub["height"], color=c,
-                    linestyle=styles[b % len(styles)], marker=markers[b % len(markers)],
-                    markersize=3.5, linewidth=1.4, label=f"{p} — {s}")
-        lim = table.loc[table["point"] == p, "limit"].dropna()
-        if not lim.empty:
-            ax.axhline(float(lim.iloc[0]), color=c, linestyle=(0, (6, 3)), linewidth=0.9,
-                       alpha=0.8)
-            ax.annotate(f"limit {p} {float(lim.iloc[0]):.2f} m", (1.0, float(lim.iloc[0])),
-                        xycoords=("axes fraction", "data"), xytext=(3, 0),
-                        textcoords="offset points", va="center", fontsize=7, color=c)
-    best = widest_ok(table)
-    if best is not None:
-        ax.axvline(best[0], color="#1b7a3a", linewidth=1.0)
-        ax.annotate(f"widest passing: {best[0]:.1f} m", (best[0], 1.0),
-                    xycoords=("data", "axes fraction"), xytext=(3, -10),
-                    textcoords="offset points", fontsize=8, color="#1b7a3a")
-    ax.set_xlabel("entrance width (m)")
-    ax.set_ylabel("wave height at the point, H or H$_{1/3}$ (m)")
-    ax.set_ylim(bottom=0)
-    ax.grid(True, color="#dddddd", linewidth=0.6)
-    ax.legend(loc="upper left", bbox_to_anchor=(1.13, 1.0), fontsize=7.5, frameon=False,
-              title="point — sea state", title_fontsize=8)
-    arm = table.attrs.get("arm", "")
-    ax.set_title(title or f"Entrance-width sweep: head of '{arm}' moved along its end "
-                 "segment", fontsize=11, loc="left")
-    foot = [verdict(table)]
-    skipped = table.attrs.get("skipped", [])
-    if skipped:
-        foot.append(f"skipped moves: {', '.join(f'{m:+g} m' for m, _ in skipped)}")
-    foot += wrap_to(CAUTION_SHORT, 9.0, 7.5)
-    fig.text(0.02, 0.02, "\n".join(foot), fontsize=7.5, va="bottom", ha="left",
-             color="#555555")
-    with atomic_path(path) as tmp:
-        fig.savefig(tmp, dpi=dpi, format="png")
-    return path
-
-
-def write_sweep(table, out_dir):
-    """Write ``sweep-<arm>.csv`` and ``sweep-<arm>.png`` into ``out_dir``, both or none.
-
-    Parameters
-    ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
-    out_dir : str or os.PathLike
-        Output folder (created if missing).
-
-    Returns
-    -------
-    list of pathlib.Path
-    """
-    from pathlib import Path
-
-    from harbor.outputs._atomic import slug, staging_dir
-
-    name = slug(table.attrs.get("arm", "arm"), "arm")
-    files = [f"sweep-{name}.csv", f"sweep-{name}.png"]
-    with staging_dir(out_dir) as (stage, staged):
-        with open(stage / files[0], "w", encoding="utf-8", newline="") as fh:
-            fh.write(sweep_csv_text(table))
-        staged.append(files[0])
-        plot_sweep(table, stage / files[1])
-        staged.append(files[1])
-    return [Path(out_dir) / f for f in files]
+    if name in studies.__all__:
+        return getattr(studies, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
