@@ -313,6 +313,9 @@ def sheltering_map(result, sea, path, show="kd", dpi=170):
     info = sea_info(result, name)
     title, sea_line, method = title_lines(result, info)
     warns = warning_lines(result, sea=name)
+    from harbor.solver.assemble import notices
+
+    n_warn = len({n.text for n in notices(result, sea=name, level="warning")})
 
     foot_lines = wrap_to(CAUTION_SHORT, fw - 2 * margin, 7.5)
     prov = (f"harbor {result.attrs.get('harbor_version', '')}  \u00b7  "
@@ -345,7 +348,7 @@ def sheltering_map(result, sea, path, show="kd", dpi=170):
         n_rows = max(1, int((y - bottom - 1.0) / (7.5 * 1.45 / 72.0)) - 3)
         y -= draw_point_table(fig, drawn, (side_x, y), side_w, fontsize=7.5,
                               max_rows=n_rows) + 0.2
-    _warning_panel(fig, side_x, y, side_w, y - bottom, warns, name)
+    _warning_panel(fig, side_x, y, side_w, y - bottom, warns, name, n_warn)
 
     fig.text(margin / fw, 1 - 0.28 / fh, title_line, fontsize=title_size, fontweight="bold",
              color=INK, va="top")
@@ -364,16 +367,19 @@ def sheltering_map(result, sea, path, show="kd", dpi=170):
     return Path(path)
 
 
-def _warning_panel(fig, x, y_top, width, height, warns, sea, fontsize=7.0):
+def _warning_panel(fig, x, y_top, width, height, warns, sea, n_warn=None, fontsize=7.0):
     """The validity warnings of a sea state, as many as fit in ``height`` inches, then a
     line saying how many more the PDF report lists. Returns the height used."""
     fw, fh = fig.get_size_inches()
     line_h = fontsize * 1.3 / 72.0
     n = len(warns)
-    head = (f"Validity warnings for '{sea}' ({n})" if n else
-            f"Validity warnings for '{sea}': none")
+    n_warn = n if n_warn is None else n_warn
+    notes = n - n_warn
+    head = f"Validity warnings for '{sea}': {n_warn or 'none'}"
+    if notes:
+        head += f" (+{notes} note{'s' if notes > 1 else ''})"
     fig.text(x / fw, y_top / fh, head, fontsize=fontsize + 1, fontweight="bold",
-             color=OVER_COLOUR if n else INK, va="top")
+             color=OVER_COLOUR if n_warn else INK, va="top")
     y = y_top - (fontsize + 1) * 1.6 / 72.0
     lines = []
     for i, w in enumerate(warns):

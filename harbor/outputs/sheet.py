@@ -34,7 +34,7 @@ def _wrap(text: str, width_in: float, fontsize: float) -> list[str]:
 
 
 def _text_block(fig, x, y_top, width, max_height, heading, items, fontsize=6.8,
-                colour=INK, bullet="\u2013 "):
+                colour=INK, bullet="\u2013 ", more="continued on the next page"):
     """Write a heading and wrapped bullet items downwards from ``y_top`` (inches).
 
     Items that do not fit in ``max_height`` are left for a continuation page: a last
@@ -53,7 +53,7 @@ def _text_block(fig, x, y_top, width, max_height, heading, items, fontsize=6.8,
         block = [bullet + wrapped[0]] + ["   " + w for w in wrapped[1:]]
         reserve = 1 if i < len(items) - 1 else 0  # room for the "+n more" line
         if (len(lines) + len(block) + reserve) * line_h > max_height - (y_top - y) + 1e-9:
-            lines.append(f"(+{len(items) - i} more: continued on the next page)")
+            lines.append(f"(+{len(items) - i} more: {more})")
             rest = list(items[i:])
             break
         lines.extend(block)
@@ -268,8 +268,11 @@ def text_pages(heading, items, title="", fontsize=8.0, columns=2):
             if not items:
                 break
             x = left + 0.2 + c * (col_w + 0.3)
+            last = c == columns - 1
             _, items = _text_block(fig, x, top - 0.85, col_w, top - 0.85 - bottom - 0.2, "",
-                                   items, fontsize=fontsize)
+                                   items, fontsize=fontsize,
+                                   more="continued on the next page" if last
+                                   else "continued in the next column")
         pages.append(fig)
     return pages
 
