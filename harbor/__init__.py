@@ -30,7 +30,12 @@ _LAZY = {
 __all__ = ["__version__", *sorted(_LAZY)]
 
 
+_SUBPACKAGES = ("cautions", "errors", "geometry", "outputs", "solver", "study", "waves")
+
+
 def __getattr__(name):
+    if name in _SUBPACKAGES:  # `import harbor; harbor.outputs.write_all(...)`
+        return importlib.import_module(f"harbor.{name}")
     module = _LAZY.get(name)
     if module is None:
         raise AttributeError(f"module 'harbor' has no attribute {name!r}")
