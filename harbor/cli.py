@@ -433,10 +433,8 @@ def cmd_climate(args):
     int
         0; user mistakes raise :class:`harbor.errors.InputError`.
     """
-    from harbor.geometry.entrance import nearest_heads
     from harbor.outputs.studies import downtime_text, write_climate
     from harbor.study.climate import climate_downtime, percent_warning, read_climate
-    from harbor.study.sweep import MoveRejected, move_head
 
     sc = _load(args.scenario)
     if (args.arm is None) != (args.move is None):
@@ -448,23 +446,23 @@ def cmd_climate(args):
     pw = percent_warning(table)
     if pw:
         print(f"warning: {pw}")
+    try:
+        res = climate_downtime(sc, table, method=args.method, workers=args.workers,
+                               progress=_progress_printer(args.quiet), arm=args.arm,
+                               move=args.move)
+    except InputError as e:
+        if e.key in ("arm", "move"):  # name the option the user typed
+            raise InputError(e.problem, file=e.file, key=f"--{e.key}") from None
+        raise
+    width = res.downtime.attrs["entrance_width"]
     title = None
     if args.arm is not None:
-        try:
-            sc, width = move_head(sc, args.arm, args.move)
-        except MoveRejected as e:
-            raise InputError(f"cannot move the head of '{args.arm}' by {args.move:g} m: {e}",
-                             file=sc.path, key="--move") from None
         print(f"head of '{args.arm}' moved {args.move:+g} m: entrance width {width:.1f} m")
         title = f"Berth downtime, head of '{args.arm}' moved {args.move:+g} m " \
                 f"(entrance {width:.1f} m)"
-    else:
-        ent = nearest_heads(sc.layout)
-        if ent is not None:
-            print(f"entrance between the nearest heads: {ent.width:.1f} m")
-            title = f"Berth downtime by wave direction (entrance {ent.width:.1f} m)"
-    res = climate_downtime(sc, table, method=args.method, workers=args.workers,
-                           progress=_progress_printer(args.quiet))
+    elif width is not None:
+        print(f"entrance between the nearest heads: {width:.1f} m")
+        title = f"Berth downtime by wave direction (entrance {width:.1f} m)"
     written = write_climate(res, args.out, title=title)
     print(f"{res.downtime.attrs['table_rows']} climate rows, "
           f"{res.downtime.attrs['cases']} distinct (period, direction, spreading) cases")

@@ -339,16 +339,27 @@ def sheltering_map(result, sea, path, show="kd", dpi=170):
     draw_colorbar(fig, drawn)
     pos = drawn["ax"].get_position()
     renderer = fig.canvas.get_renderer()
+    # The panel starts right after the colour bar: a tall layout leaves a narrow map,
+    # and the room it leaves goes to the panel (two columns when wide enough), not to
+    # blank paper.
+    side_x = min(side_x, pos.x1 * fw + 1.25)
+    room_w = fw - margin - side_x
+    two_cols = room_w >= 6.4
+    col_w = (room_w - 0.3) / 2 if two_cols else room_w
     y = fh - head_h
     legend = draw_legend(fig, drawn, (side_x, y), fontsize=7.5)
     if legend is not None:
         y = legend.get_window_extent(renderer).y0 / fig.dpi - 0.2
     bottom = foot_top + 0.15
     if drawn["points"]:
-        n_rows = max(1, int((y - bottom - 1.0) / (7.5 * 1.45 / 72.0)) - 3)
-        y -= draw_point_table(fig, drawn, (side_x, y), side_w, fontsize=7.5,
+        n_rows = max(1, int((y - bottom - (0.2 if two_cols else 1.0)) / (7.5 * 1.45 / 72.0)) - 3)
+        y -= draw_point_table(fig, drawn, (side_x, y), min(col_w, 3.3), fontsize=7.5,
                               max_rows=n_rows) + 0.2
-    _warning_panel(fig, side_x, y, side_w, y - bottom, warns, name, n_warn)
+    if two_cols:
+        wx, wy = side_x + col_w + 0.3, fh - head_h
+        _warning_panel(fig, wx, wy, col_w, wy - bottom, warns, name, n_warn)
+    else:
+        _warning_panel(fig, side_x, y, col_w, y - bottom, warns, name, n_warn)
 
     fig.text(margin / fw, 1 - 0.28 / fh, title_line, fontsize=title_size, fontweight="bold",
              color=INK, va="top")
@@ -361,7 +372,6 @@ def sheltering_map(result, sea, path, show="kd", dpi=170):
     y_rule = (foot_top + 0.08) / fh
     fig.add_artist(Line2D([margin / fw, 1 - margin / fw], [y_rule, y_rule], color="#bbbbbb",
                           lw=0.6))
-    del pos
     with atomic_path(path) as tmp:
         fig.savefig(tmp, dpi=dpi, format="png", facecolor="white")
     return Path(path)

@@ -332,7 +332,8 @@ def _run_cases(scenario, cases, method, workers, progress):
     return results
 
 
-def climate_downtime(scenario, table, method="auto", workers=None, progress=None):
+def climate_downtime(scenario, table, method="auto", workers=None, progress=None, arm=None,
+                     move=None):
     """Downtime of every point with a limit under a wave climate.
 
     Parameters
@@ -350,6 +351,9 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
         solves them one after the other).
     progress : callable, optional
         ``progress(name, done, total)`` after each distinct case.
+    arm, move : str and float, optional
+        First move the free head of ``arm`` by ``move`` metres along its end segment
+        (as :func:`harbor.study.sweep.move_head`; positive lengthens).
 
     Returns
     -------
@@ -359,7 +363,9 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
         columns add up to ``total``). ``rows``: one row per climate row and point,
         columns ``row, height, period, from, spreading, percent, sector, point, kd,
         point_height, limit, exceeds, reaching``. ``occurrence``: % of time from each
-        sector. ``warnings``: list of str.
+        sector. ``warnings``: list of str. The tables' ``attrs`` carry ``arm``,
+        ``move`` (m) and ``entrance_width`` (m, the moved head's gap, or the gap between
+        the nearest heads; None when the layout has none).
 
     Raises
     ------
@@ -390,6 +396,22 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
     .. [3] Mitsuyasu, H., et al. (1975). Observations of the directional spectrum of
        ocean waves using a cloverleaf buoy. *J. Phys. Oceanogr.*, 5(4), 750-760.
     """
+    if (arm is None) != (move is None):
+        raise InputError("arm and move go together", key="arm" if arm is None else "move")
+    width = None
+    if arm is not None:
+        from harbor.study.sweep import MoveRejected, move_head
+
+        try:
+            scenario, width = move_head(scenario, arm, move)
+        except MoveRejected as e:
+            raise InputError(f"cannot move the head of '{arm}' by {move:g} m: {e}",
+                             file=scenario.path or None, key="move") from None
+    else:
+        from harbor.geometry.entrance import nearest_heads
+
+        ent = nearest_heads(scenario.layout)
+        width = None if ent is None else float(ent.width)
     tab = climate_table(table)
     limited = tuple(p for p in scenario.points if p.limit is not None)
     if not limited:
@@ -467,7 +489,8 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
     for df in (down, rows):
         df.attrs.update(cases=len(cases), table_rows=nr, file=tab.attrs.get("file"),
                         cautions=CAUTION_SHORT, title=scenario.title,
-                        scenario=str(scenario.path or ""))
+                        scenario=str(scenario.path or ""), arm=arm,
+                        move=None if move is None else float(move), entrance_width=width)
     return ClimateResult(down, rows, occurrence, warnings)
 
 
