@@ -69,7 +69,7 @@ SWEEP_EXAMPLE = """example:
 Moves the free head of the arm along its end segment by each distance from MIN to MAX
 in steps of STEP metres (positive lengthens the arm and narrows the entrance), solves
 every sea state (or --sea) at the scenario's points, and writes sweep-<arm>.csv
-(columns move,entrance_width,sea,point,kd,height,limit,ok) and sweep-<arm>.png. Moves
+(columns move,entrance_width,sea,point,kd,height,limit,ok,valid) and sweep-<arm>.png. Moves
 that would make arms cross, put the head in land or shorten the arm past the other end
 of its end segment are reported and skipped.
 """

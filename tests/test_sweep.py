@@ -154,7 +154,8 @@ def test_impossible_moves_are_reported_and_skipped(gap_sweep):
 
 
 def test_table_columns_and_ok(gap_sweep):
-    assert list(gap_sweep.columns) == SWEEP_COLUMNS
+    # the contract columns, then the validity flag
+    assert list(gap_sweep.columns) == SWEEP_COLUMNS + ["valid"]
     with_limit = gap_sweep[gap_sweep["point"] == "centre"]
     np.testing.assert_array_equal(with_limit["ok"].astype(bool),
                                   with_limit["height"] <= 0.5)
@@ -162,7 +163,7 @@ def test_table_columns_and_ok(gap_sweep):
     assert gap_sweep.loc[gap_sweep["point"] == "west corner", "limit"].isna().all()
     text = sweep_csv_text(gap_sweep)
     lines = text.splitlines()
-    assert lines[0] == "move,entrance_width,sea,point,kd,height,limit,ok"
+    assert lines[0] == "move,entrance_width,sea,point,kd,height,limit,ok,valid"
     assert len(lines) == 1 + len(gap_sweep)
     back = pd.read_csv(pd.io.common.StringIO(text))
     assert set(back.loc[back["point"] == "centre", "ok"]) <= {True, False}
@@ -271,7 +272,7 @@ def test_cli_sweep_writes_csv_and_png(gap_scenario, tmp_path, capsys):
     assert "widest entrance at which every point meets its limit" in text or \
         "lets every point meet its limit" in text
     csv_text = (out / "sweep-west.csv").read_text()
-    assert csv_text.startswith("move,entrance_width,sea,point,kd,height,limit,ok\n")
+    assert csv_text.startswith("move,entrance_width,sea,point,kd,height,limit,ok,valid\n")
     png = (out / "sweep-west.png").read_bytes()
     assert png[:8] == b"\x89PNG\r\n\x1a\n"
     # nothing but the two outputs is left behind (atomic staging)

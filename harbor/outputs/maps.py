@@ -326,10 +326,12 @@ def sheltering_map(result, sea, path, show="kd", dpi=170):
     title_size = 14.0
     while len(wrap_to(title, fw - 2 * margin, title_size)) > 1 and title_size > 10.5:
         title_size -= 0.5
-    title_line = wrap_to(title, fw - 2 * margin, title_size)
-    title_line = title_line[0] + (" \u2026" if len(title_line) > 1 else "")
+    # a long title wraps onto a second line (never cut); the lines below move down
+    title_rows = wrap_to(title, fw - 2 * margin, title_size)[:2]
+    title_line = "\n".join(title_rows)
+    extra = (len(title_rows) - 1) * title_size * 1.2 / 72.0
     method_lines = wrap_to(method, fw - 2 * margin, 8.5)[:2]
-    head_h = 0.80 + len(method_lines) * 8.5 * 1.25 / 72.0 + 0.1
+    head_h = 0.80 + extra + len(method_lines) * 8.5 * 1.25 / 72.0 + 0.1
 
     side_w = 3.3  # key, point table and warnings
     side_x = fw - margin - side_w
@@ -362,9 +364,10 @@ def sheltering_map(result, sea, path, show="kd", dpi=170):
         _warning_panel(fig, side_x, y, col_w, y - bottom, warns, name, n_warn)
 
     fig.text(margin / fw, 1 - 0.28 / fh, title_line, fontsize=title_size, fontweight="bold",
+             linespacing=1.0,
              color=INK, va="top")
-    fig.text(margin / fw, 1 - 0.58 / fh, sea_line, fontsize=10.5, color=INK, va="top")
-    fig.text(margin / fw, 1 - 0.80 / fh, "\n".join(method_lines), fontsize=8.5,
+    fig.text(margin / fw, 1 - (0.58 + extra) / fh, sea_line, fontsize=10.5, color=INK, va="top")
+    fig.text(margin / fw, 1 - (0.80 + extra) / fh, "\n".join(method_lines), fontsize=8.5,
              color=MUTED, va="top", linespacing=1.25)
     fig.text(margin / fw, 0.34 / fh, "\n".join(foot_lines), fontsize=7.5, color=INK,
              va="bottom", linespacing=1.25)

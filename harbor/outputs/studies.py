@@ -70,13 +70,19 @@ def sweep_text(table) -> str:
     lim = f"{'(m)':>8}{'(m)':>9}  " + "".join(
         f"{'limit ' + format(limits[n], '.2f') if not math.isnan(limits[n]) else 'no limit':>{w}}"
         for n in names)
-    lines = ["highest wave height over the sea states (m); * above the point's limit",
+    bad = set()
+    if "valid" in table:
+        bad = {(m, p) for m, p in table.loc[~table["valid"].astype(bool), ["move", "point"]]
+               .itertuples(index=False)}
+    lines = ["highest wave height over the sea states (m); * above the point's limit; "
+             "? outside the method's measured validity",
              head, lim, "-" * len(head)]
     for (m, width), r in summ.iterrows():
         cells = []
         for n in names:
             over = not math.isnan(limits[n]) and r[n] > limits[n]
-            cells.append(f"{format(r[n], '.2f') + ('*' if over else ' '):>{w}}")
+            mark = ("*" if over else " ") + ("?" if (m, n) in bad else " ")
+            cells.append(f"{format(r[n], '.2f') + mark:>{w}}")
         lines.append(f"{format(m, '+g') if m else '0':>8}{width:>9.1f}  " + "".join(cells))
     return "\n".join(lines)
 
@@ -102,6 +108,8 @@ def sweep_csv_text(table) -> str:
     """
     out = table.copy()
     out["ok"] = ["" if pd.isna(v) else ("true" if v else "false") for v in table["ok"]]
+    if "valid" in out:
+        out["valid"] = ["true" if bool(v) else "false" for v in table["valid"]]
     buf = io.StringIO()
     out.to_csv(buf, index=False, columns=list(table.columns), lineterminator="\n",
                float_format="%.6g", na_rep="")

@@ -25,6 +25,9 @@ from harbor.errors import InputError
 
 #: Columns of the sweep table and of its CSV file (contract of issue 6).
 SWEEP_COLUMNS = ["move", "entrance_width", "sea", "point", "kd", "height", "limit", "ok"]
+#: The table's columns: the contract columns, then ``valid`` (False where the value is
+#: outside its method's measured validity, the result's ``point_valid``).
+TABLE_COLUMNS = SWEEP_COLUMNS + ["valid"]
 
 #: Narrowest gap (m) a moved head may leave to another arm or land. A thin-barrier model
 #: says nothing useful about a slit narrower than this, and no navigable entrance is
@@ -251,7 +254,8 @@ def sweep(scenario, arm, moves, sea=None, method="auto", progress=None):
     pandas.DataFrame
         Columns ``move`` (m), ``entrance_width`` (m), ``sea``, ``point``, ``kd`` (K'),
         ``height`` (m: H or H1/3), ``limit`` (m, NaN when the point has none), ``ok``
-        (nullable boolean: height <= limit; NA without a limit). One row per accepted
+        (nullable boolean: height <= limit; NA without a limit), ``valid`` (False
+        where the value is outside its method's measured validity). One row per accepted
         move, sea state and point. ``attrs``: ``arm``, ``skipped`` (list of
         ``(move, reason)``), ``methods`` (dict move -> list of method names per sea),
         ``warnings`` (list of str), ``cautions``.
@@ -300,16 +304,18 @@ def sweep(scenario, arm, moves, sea=None, method="auto", progress=None):
                 if w.text not in warnings:
                     warnings.append(w.text)
             lim = ds.point_limit.values
+            pvalid = ds.point_valid.values if "point_valid" in ds else None
             for a, s in enumerate(ds.sea.values):
                 for b, p in enumerate(ds.point.values):
                     kd = float(ds.point_kd.values[a, b])
                     hgt = float(ds.point_height.values[a, b])
                     limit = float(lim[b])
                     ok = pd.NA if math.isnan(limit) else bool(hgt <= limit)
-                    rows.append((m, width, str(s), str(p), kd, hgt, limit, ok))
+                    valid = True if pvalid is None else bool(pvalid[a, b])
+                    rows.append((m, width, str(s), str(p), kd, hgt, limit, ok, valid))
         if progress is not None:
             progress(f"sweep '{arm}'", n, len(moves))
-    df = pd.DataFrame(rows, columns=SWEEP_COLUMNS)
+    df = pd.DataFrame(rows, columns=TABLE_COLUMNS)
     df["ok"] = df["ok"].astype("boolean")
     df.attrs.update(arm=arm, skipped=skipped, methods=methods, warnings=warnings,
                     cautions=CAUTION_SHORT, title=scenario.title,
@@ -382,8 +388,14 @@ def verdict(table) -> str:
         return ("no swept entrance width (from "
                 f"{table['entrance_width'].min():.1f} to {table['entrance_width'].max():.1f} m) "
                 "lets every point meet its limit in every sea state")
-    return ("widest entrance at which every point meets its limit in every sea state: "
+    text = ("widest entrance at which every point meets its limit in every sea state: "
             f"{best[0]:.1f} m (move {best[1]:+g} m)")
+    if "valid" in table:
+        at = table[(table["move"] == best[1]) & table["limit"].notna()]
+        if not at["valid"].astype(bool).all():
+            text += (" -- but some of those values are outside their method's measured "
+                     "validity (see the warnings): do not rely on this width")
+    return text
 
 
 def sweep_summary(table):
