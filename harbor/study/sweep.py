@@ -284,12 +284,7 @@ def sweep(scenario, arm, moves, sea=None, method="auto", progress=None):
 
     find_arm(scenario, arm)
     if sea is not None:
-        try:
-            scenario.sea(sea)
-        except KeyError:
-            names = [s.name for s in scenario.seas]
-            raise InputError(f"no sea state named '{sea}' (known: {', '.join(names)})",
-                             file=scenario.path or None, key="--sea") from None
+        scenario.sea(sea, key="--sea")  # the did-you-mean InputError
     moves = [float(m) for m in np.atleast_1d(np.asarray(moves, float))]
     rows, skipped, methods, warnings = [], [], {}, []
     for n, m in enumerate(moves, 1):
