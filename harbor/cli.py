@@ -454,7 +454,7 @@ def cmd_climate(args):
         if e.key in ("arm", "move"):  # name the option the user typed
             raise InputError(e.problem, file=e.file, key=f"--{e.key}") from None
         raise
-    width = res.downtime.attrs["entrance_width"]
+    width = res.attrs["entrance_width"]
     title = None
     if args.arm is not None:
         print(f"head of '{args.arm}' moved {args.move:+g} m: entrance width {width:.1f} m")
@@ -464,11 +464,11 @@ def cmd_climate(args):
         print(f"entrance between the nearest heads: {width:.1f} m")
         title = f"Berth downtime by wave direction (entrance {width:.1f} m)"
     written = write_climate(res, args.out, title=title)
-    print(f"{res.downtime.attrs['table_rows']} climate rows, "
-          f"{res.downtime.attrs['cases']} distinct (period, direction, spreading) cases")
+    print(f"{res.attrs['table_rows']} climate rows, "
+          f"{res.attrs['cases']} distinct (period, direction, spreading) cases")
     print(downtime_text(res))
     print(f"wrote {', '.join(str(p) for p in written)}")
-    _print_warnings([w for w in res.warnings if w != pw])
+    _print_warnings([w for w in res.attrs["warnings"] if w != pw])
     print(f"note: {CAUTION_SHORT}")
     return 0
 

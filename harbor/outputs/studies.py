@@ -255,6 +255,54 @@ def write_sweep(table, out_dir):
 
 # --------------------------------------------------------------------------- climate
 
+#: Columns of climate-rows.csv (one row per climate row and point).
+ROWS_COLUMNS = ["row", "height", "period", "from", "spreading", "percent", "sector", "point",
+                "kd", "point_height", "limit", "exceeds", "reaching"]
+
+
+def climate_tables(result):
+    """The tables of a climate result (:func:`harbor.study.climate.climate_downtime`).
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+
+    Returns
+    -------
+    downtime : pandas.DataFrame
+        Indexed by point: ``limit``, ``total`` and one column per sector centre (int).
+    rows : pandas.DataFrame
+        One row per climate row and point, columns :data:`ROWS_COLUMNS`.
+    occurrence : pandas.Series
+        % of time from each sector, indexed by sector centre.
+    """
+    points = [str(p) for p in result["point"].values]
+    sectors = [int(c) for c in result["sector"].values]
+    down = pd.DataFrame(index=pd.Index(points, name="point"))
+    down["limit"] = result["limit"].values
+    down["total"] = result["total"].values
+    for k, c in enumerate(sectors):
+        down[c] = result["downtime"].values[:, k]
+    occ = pd.Series(result["occurrence"].values, index=pd.Index(sectors, name="sector"),
+                    name="percent")
+    nr, npnt = result.sizes["row"], len(points)
+
+    def per_row(v):
+        return np.repeat(np.asarray(result[v].values), npnt)
+
+    rows = pd.DataFrame({
+        "row": np.repeat(result["row"].values, npnt), "height": per_row("height"),
+        "period": per_row("period"), "from": per_row("from"),
+        "spreading": per_row("spreading"), "percent": per_row("percent"),
+        "sector": per_row("row_sector"), "point": np.tile(points, nr),
+        "kd": result["kd"].values.ravel(), "point_height": result["point_height"].values.ravel(),
+        "limit": np.tile(result["limit"].values, nr),
+        "exceeds": result["exceeds"].values.ravel(), "reaching": per_row("reaching")},
+        columns=ROWS_COLUMNS)
+    for t in (down, rows):
+        t.attrs.update(result.attrs)
+    return down, rows, occ
+
 def _order(occurrence):
     """Sectors with any occurrence, in bearing order starting after the widest empty
     stretch (so that a NW-N-NE climate reads 300, 330, 000, 030)."""
@@ -272,7 +320,7 @@ def downtime_text(result) -> str:
 
     Parameters
     ----------
-    result : ClimateResult
+    result : xarray.Dataset
         From :func:`climate_downtime`.
 
     Returns
@@ -281,7 +329,7 @@ def downtime_text(result) -> str:
         Per point: limit (m), total downtime (%) and downtime per sector (%), for the
         sectors the climate has any time in; last line the time from each sector (%).
     """
-    down, occ = result.downtime, result.occurrence
+    down, _, occ = climate_tables(result)
     order = _order(occ)
     head = f"{'point':<18}{'limit':>7}{'total':>8}  |" + "".join(f"{sector_text(c):>9}"
                                                               for c in order)
@@ -302,7 +350,7 @@ def downtime_csv_text(result) -> str:
 
     Parameters
     ----------
-    result : ClimateResult
+    result : xarray.Dataset
         From :func:`climate_downtime`.
 
     Returns
@@ -311,8 +359,9 @@ def downtime_csv_text(result) -> str:
         Columns ``point,limit,total,000,030,...,330``: limit in m, the others in % of
         all time (sector columns by their centre, degrees true); no comment lines.
     """
-    d = result.downtime.reset_index()
-    d.columns = ["point", "limit", "total"] + [f"{c:03d}" for c in _sectors(result.downtime)]
+    down, _, _ = climate_tables(result)
+    d = down.reset_index()
+    d.columns = ["point", "limit", "total"] + [f"{c:03d}" for c in _sectors(down)]
     buf = io.StringIO()
     d.to_csv(buf, index=False, lineterminator="\n", float_format="%.4g")
     return buf.getvalue()
@@ -323,16 +372,16 @@ def rows_csv_text(result) -> str:
 
     Parameters
     ----------
-    result : ClimateResult
+    result : xarray.Dataset
         From :func:`climate_downtime`.
 
     Returns
     -------
     str
-        The columns of ``result.rows`` (heights in m, period in s, directions in
+        The columns :data:`ROWS_COLUMNS` (heights in m, period in s, directions in
         degrees true, percent in %); ``exceeds`` as ``true``/``false``.
     """
-    r = result.rows.copy()
+    _, r, _ = climate_tables(result)
     r["exceeds"] = np.where(r["exceeds"], "true", "false")
     buf = io.StringIO()
     r.to_csv(buf, index=False, lineterminator="\n", float_format="%.6g")
@@ -344,7 +393,7 @@ def plot_downtime(result, path, title=None, dpi=150):
 
     Parameters
     ----------
-    result : ClimateResult
+    result : xarray.Dataset
         From :func:`climate_downtime`.
     path : str or os.PathLike
         Output PNG; written atomically.
@@ -365,7 +414,7 @@ def plot_downtime(result, path, title=None, dpi=150):
     """
     from harbor.outputs._atomic import atomic_path
 
-    down, occ = result.downtime, result.occurrence
+    down, _, occ = climate_tables(result)
     order = _order(occ) or _sectors(down)
     colours = ["#0072b2", "#d55e00", "#009e73", "#cc79a7", "#e69f00", "#56b4e9",
                "#000000", "#f0e442"]
@@ -399,10 +448,10 @@ def plot_downtime(result, path, title=None, dpi=150):
     if name:
         ax.text(0.0, 1.01, str(name), transform=ax.transAxes, fontsize=8.5, color="#555555",
                 va="bottom")
-    src = result.downtime.attrs.get("file")
+    src = result.attrs.get("file")
     foot = [f"climate: {Path(src).name if src else 'table'}, "
-            f"{result.downtime.attrs.get('table_rows', '?')} rows, "
-            f"{occ.sum():.1f} % of time; {result.downtime.attrs.get('cases', '?')} distinct "
+            f"{result.attrs.get('table_rows', '?')} rows, "
+            f"{occ.sum():.1f} % of time; {result.attrs.get('cases', '?')} distinct "
             "(period, direction, spreading) cases solved"]
     foot += wrap_to(CAUTION_SHORT, 9.0, 7.5)
     fig.text(0.02, 0.02, "\n".join(foot), fontsize=7.5, va="bottom", ha="left",
@@ -417,7 +466,7 @@ def write_climate(result, out_dir, title=None):
 
     Parameters
     ----------
-    result : ClimateResult
+    result : xarray.Dataset
     out_dir : str or os.PathLike
         Output folder (created if missing).
     title : str, optional
@@ -441,5 +490,5 @@ def write_climate(result, out_dir, title=None):
     return [Path(out_dir) / f for f in files]
 
 
-__all__ = ["downtime_csv_text", "downtime_text", "plot_downtime", "plot_sweep",
+__all__ = ["climate_tables", "downtime_csv_text", "downtime_text", "plot_downtime", "plot_sweep",
            "rows_csv_text", "sweep_csv_text", "sweep_text", "write_climate", "write_sweep"]

@@ -20,10 +20,10 @@ import io
 import math
 import os
 from pathlib import Path
-from typing import NamedTuple
 
 import numpy as np
 import pandas as pd
+import xarray as xr
 
 from harbor.cautions import CAUTION_SHORT
 from harbor.errors import InputError
@@ -40,15 +40,6 @@ PERCENT_TOLERANCE = 1.0
 #: Below this many distinct cases they are solved one after the other (a pool of
 #: threads is not worth starting for two or three).
 PARALLEL_FROM = 4
-
-
-class ClimateResult(NamedTuple):
-    """What :func:`climate_downtime` returns (unpacks as a tuple)."""
-
-    downtime: pd.DataFrame
-    rows: pd.DataFrame
-    occurrence: pd.Series
-    warnings: list
 
 
 # --------------------------------------------------------------------------- reading
@@ -357,15 +348,18 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
 
     Returns
     -------
-    ClimateResult
-        ``downtime``: DataFrame indexed by point, columns ``limit`` (m), ``total`` (%)
-        and one column per sector centre 0, 30, ..., 330 (%, of all time: the sector
-        columns add up to ``total``). ``rows``: one row per climate row and point,
-        columns ``row, height, period, from, spreading, percent, sector, point, kd,
-        point_height, limit, exceeds, reaching``. ``occurrence``: % of time from each
-        sector. ``warnings``: list of str. The tables' ``attrs`` carry ``arm``,
-        ``move`` (m) and ``entrance_width`` (m, the moved head's gap, or the gap between
-        the nearest heads; None when the layout has none).
+    xarray.Dataset
+        Dimensions ``point`` (the points with a limit), ``sector`` (centres 0, 30, ...,
+        330 degrees true) and ``row`` (the climate table's rows, by their number).
+        ``limit`` (point, m), ``total`` (point, % of time above the limit),
+        ``downtime`` (point, sector: % of all time, adding up to ``total``),
+        ``occurrence`` (sector, % of time); per row ``height``, ``period``, ``from``,
+        ``spreading``, ``percent``, ``row_sector``, ``reaching``; per row and point
+        ``kd``, ``point_height`` (m), ``exceeds``. Attributes: ``warnings`` (list of
+        str), ``cases``, ``table_rows``, ``file``, ``title``, ``scenario``, ``arm``,
+        ``move`` (m), ``entrance_width`` (m: the moved head's gap, or the gap between
+        the nearest heads; None when the layout has none), ``cautions``. The same
+        labelled shape as :func:`harbor.study.sweep.sweep`.
 
     Raises
     ------
@@ -460,38 +454,49 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
                         "from directions that mostly do not reach the harbour from open water")
 
     names = [p.name for p in limited]
-    down = pd.DataFrame(index=pd.Index(names, name="point"))
-    down["limit"] = lim
-    down["total"] = (pct[:, None] * exceeds).sum(axis=0)
-    for c in SECTORS:
-        m = sect == c
-        down[c] = (pct[m, None] * exceeds[m]).sum(axis=0)
-    occurrence = pd.Series({c: float(pct[sect == c].sum()) for c in SECTORS},
-                           name="percent")
-    occurrence.index.name = "sector"
-
-    nr, npnt = heights.shape
-    rows = pd.DataFrame({
-        "row": np.repeat(tab.index.to_numpy(), npnt),
-        "height": np.repeat(H, npnt),
-        "period": np.repeat(tab["period"].to_numpy(float), npnt),
-        "from": np.repeat(tab["from"].to_numpy(float), npnt),
-        "spreading": np.repeat(tab["spreading"].to_numpy(float), npnt),
-        "percent": np.repeat(pct, npnt),
-        "sector": np.repeat(sect, npnt),
-        "point": np.tile(names, nr),
-        "kd": kd.ravel(),
-        "point_height": heights.ravel(),
-        "limit": np.tile(lim, nr),
-        "exceeds": exceeds.ravel(),
-        "reaching": np.repeat(reach, npnt),
-    })
-    for df in (down, rows):
-        df.attrs.update(cases=len(cases), table_rows=nr, file=tab.attrs.get("file"),
-                        cautions=CAUTION_SHORT, title=scenario.title,
-                        scenario=str(scenario.path or ""), arm=arm,
-                        move=None if move is None else float(move), entrance_width=width)
-    return ClimateResult(down, rows, occurrence, warnings)
+    secs = np.array(SECTORS)
+    in_sector = sect[:, None] == secs[None, :]                 # (rows, sectors)
+    down = np.einsum("r,rs,rp->ps", pct, in_sector, exceeds.astype(float))
+    nr = heights.shape[0]
+    result = xr.Dataset(
+        {
+            "limit": ("point", lim, {"long_name": "allowable wave height", "units": "m"}),
+            "total": ("point", (pct[:, None] * exceeds).sum(axis=0),
+                      {"long_name": "downtime: time the height exceeds the limit",
+                       "units": "%"}),
+            "downtime": (("point", "sector"), down,
+                         {"long_name": "downtime with waves from the sector (of all time)",
+                          "units": "%"}),
+            "occurrence": ("sector", (pct[:, None] * in_sector).sum(axis=0),
+                           {"long_name": "time the waves come from the sector",
+                            "units": "%"}),
+            "height": ("row", H, {"long_name": "H1/3 of the climate row", "units": "m"}),
+            "period": ("row", tab["period"].to_numpy(float),
+                       {"long_name": "T1/3 of the climate row", "units": "s"}),
+            "from": ("row", tab["from"].to_numpy(float),
+                     {"long_name": "direction the waves come from", "units": "degree"}),
+            "spreading": ("row", tab["spreading"].to_numpy(float),
+                          {"long_name": "Mitsuyasu s_max", "units": "1"}),
+            "percent": ("row", pct, {"long_name": "time of the row", "units": "%"}),
+            "row_sector": ("row", sect, {"long_name": "sector centre of the row",
+                                         "units": "degree"}),
+            "reaching": ("row", reach, {"long_name": "share of the energy reaching the "
+                                                     "layout from open water", "units": "1"}),
+            "kd": (("row", "point"), kd, {"long_name": "effective K'", "units": "1"}),
+            "point_height": (("row", "point"), heights,
+                             {"long_name": "H1/3 at the point", "units": "m"}),
+            "exceeds": (("row", "point"), exceeds),
+        },
+        coords={"point": names, "sector": secs, "row": tab.index.to_numpy()},
+        attrs=dict(cases=len(cases), table_rows=nr, file=tab.attrs.get("file"),
+                   cautions=CAUTION_SHORT, title=scenario.title,
+                   scenario=str(scenario.path or ""), arm=arm,
+                   move=None if move is None else float(move), entrance_width=width,
+                   warnings=list(warnings)),
+    )
+    result["sector"].attrs.update(long_name="sector centre (direction the waves come "
+                                            "from, degrees true)", units="degree")
+    return result
 
 
 # --------------------------------------------------------------------------- outputs
