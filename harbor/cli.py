@@ -370,11 +370,11 @@ def cmd_sweep(args):
                   progress=_progress_printer(args.quiet))
     for m, why in table.attrs["skipped"]:
         print(f"skipped move {m:+g} m: {why}")
-    if table.empty:
+    if table.sizes["move"] == 0:
         raise InputError("every move was skipped; nothing to write", file=sc.path,
                          key="--move")
     written = write_sweep(table, args.out)
-    widths = table.groupby("move")["entrance_width"].first()
+    widths = table["entrance_width"].values
     print(f"{len(widths)} position(s) of the head of '{args.arm}', entrance width "
           f"{widths.min():.1f} to {widths.max():.1f} m")
     print(sweep_text(table))

@@ -20,6 +20,30 @@ from harbor.outputs.style import new_figure, wrap_to
 # is shown (the sweep's verdict and widest passing width, the climate's sectors).
 
 
+def sweep_rows(result):
+    """The tidy table of a sweep result: one row per move, sea state and point.
+
+    Parameters
+    ----------
+    result : xarray.Dataset or pandas.DataFrame
+        From :func:`harbor.study.sweep.sweep` (a DataFrame is returned as it is).
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns ``move, entrance_width, sea, point, kd, height, limit, ok, valid``.
+    """
+    if isinstance(result, pd.DataFrame):
+        return result
+    df = result[["entrance_width", "kd", "height", "limit", "ok", "valid"]].to_dataframe()
+    df = df.reset_index()[["move", "entrance_width", "sea", "point", "kd", "height", "limit",
+                           "ok", "valid"]]
+    df["ok"] = pd.array([pd.NA if pd.isna(v) else bool(v) for v in df["ok"]], dtype="boolean")
+    df["valid"] = df["valid"].astype(bool)
+    df.attrs.update(result.attrs)
+    return df
+
+
 def _verdict(table):
     return str(table.attrs.get("verdict", ""))
 
@@ -53,8 +77,8 @@ def sweep_text(table) -> str:
 
     Parameters
     ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
+    table : xarray.Dataset
+        From :func:`harbor.study.sweep.sweep`.
 
     Returns
     -------
@@ -62,6 +86,7 @@ def sweep_text(table) -> str:
         One line per head position: move (m), entrance width (m) and, per point, the
         highest height over the sea states (m), marked ``*`` above the point's limit.
     """
+    table = sweep_rows(table)
     summ = _summary(table)
     limits = table.groupby("point", sort=False)["limit"].first()
     names = list(summ.columns)
@@ -92,8 +117,8 @@ def sweep_csv_text(table) -> str:
 
     Parameters
     ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
+    table : xarray.Dataset
+        From :func:`harbor.study.sweep.sweep`.
 
     Returns
     -------
@@ -106,6 +131,7 @@ def sweep_csv_text(table) -> str:
     .. [1] Shafranovich, Y. (2005). Common Format and MIME Type for Comma-Separated
        Values (CSV) Files. IETF RFC 4180.
     """
+    table = sweep_rows(table)
     out = table.copy()
     out["ok"] = ["" if pd.isna(v) else ("true" if v else "false") for v in table["ok"]]
     if "valid" in out:
@@ -149,8 +175,8 @@ def plot_sweep(table, path, title=None, dpi=150):
 
     Parameters
     ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
+    table : xarray.Dataset
+        From :func:`harbor.study.sweep.sweep`.
     path : str or os.PathLike
         Output PNG; written atomically.
     title : str, optional
@@ -167,6 +193,7 @@ def plot_sweep(table, path, title=None, dpi=150):
     dashed horizontal line in its colour; the widest passing width (if any) is marked;
     the short caution is printed under the chart.
     """
+    table = sweep_rows(table)
     from harbor.outputs._atomic import atomic_path
 
     fig = new_figure((10.0, 6.2))
@@ -229,8 +256,8 @@ def write_sweep(table, out_dir):
 
     Parameters
     ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
+    table : xarray.Dataset
+        From :func:`harbor.study.sweep.sweep`.
     out_dir : str or os.PathLike
         Output folder (created if missing).
 
@@ -490,5 +517,5 @@ def write_climate(result, out_dir, title=None):
     return [Path(out_dir) / f for f in files]
 
 
-__all__ = ["climate_tables", "downtime_csv_text", "downtime_text", "plot_downtime", "plot_sweep",
+__all__ = ["sweep_rows", "climate_tables", "downtime_csv_text", "downtime_text", "plot_downtime", "plot_sweep",
            "rows_csv_text", "sweep_csv_text", "sweep_text", "write_climate", "write_sweep"]

@@ -18,6 +18,7 @@ import math
 
 import numpy as np
 import pandas as pd
+import xarray as xr
 import shapely
 
 from harbor.cautions import CAUTION_SHORT
@@ -251,14 +252,17 @@ def sweep(scenario, arm, moves, sea=None, method="auto", progress=None):
 
     Returns
     -------
-    pandas.DataFrame
-        Columns ``move`` (m), ``entrance_width`` (m), ``sea``, ``point``, ``kd`` (K'),
-        ``height`` (m: H or H1/3), ``limit`` (m, NaN when the point has none), ``ok``
-        (nullable boolean: height <= limit; NA without a limit), ``valid`` (False
-        where the value is outside its method's measured validity). One row per accepted
-        move, sea state and point. ``attrs``: ``arm``, ``skipped`` (list of
-        ``(move, reason)``), ``methods`` (dict move -> list of method names per sea),
-        ``warnings`` (list of str), ``cautions``.
+    xarray.Dataset
+        Dimensions ``move`` (the accepted moves, m), ``sea`` and ``point``:
+        ``entrance_width`` (move, m), ``kd`` and ``height`` (move, sea, point; m: H or
+        H1/3), ``limit`` (point, m, NaN when none), ``ok`` (1 height <= limit, 0 above,
+        NaN without a limit), ``valid`` (False where the value is outside its method's
+        measured validity), ``method`` (move, sea). Attributes: ``arm``, ``skipped``
+        (list of ``(move, reason)``), ``warnings`` (list of str), ``widest``
+        (``(width, move)`` or None, see :func:`widest_ok`), ``verdict``, ``title``,
+        ``scenario``, ``cautions``. The same labelled shape as
+        :func:`harbor.study.climate.climate_downtime`; :func:`sweep_table` gives the
+        tidy table (the rows of the CSV file).
 
     Raises
     ------
@@ -286,7 +290,7 @@ def sweep(scenario, arm, moves, sea=None, method="auto", progress=None):
     if sea is not None:
         scenario.sea(sea, key="--sea")  # the did-you-mean InputError
     moves = [float(m) for m in np.atleast_1d(np.asarray(moves, float))]
-    rows, skipped, methods, warnings = [], [], {}, []
+    done, skipped, warnings = [], [], []
     for n, m in enumerate(moves, 1):
         try:
             moved, width = move_head(scenario, arm, m)
@@ -294,30 +298,85 @@ def sweep(scenario, arm, moves, sea=None, method="auto", progress=None):
             skipped.append((m, str(e)))
         else:
             ds = assemble.solve(moved, sea=sea, grid=False, method=method)
-            methods[m] = [str(v) for v in ds.sea_method.values]
             for w in assemble.notices(ds, sea=sea):
                 if w.text not in warnings:
                     warnings.append(w.text)
-            lim = ds.point_limit.values
-            pvalid = ds.point_valid.values if "point_valid" in ds else None
-            for a, s in enumerate(ds.sea.values):
-                for b, p in enumerate(ds.point.values):
-                    kd = float(ds.point_kd.values[a, b])
-                    hgt = float(ds.point_height.values[a, b])
-                    limit = float(lim[b])
-                    ok = pd.NA if math.isnan(limit) else bool(hgt <= limit)
-                    valid = True if pvalid is None else bool(pvalid[a, b])
-                    rows.append((m, width, str(s), str(p), kd, hgt, limit, ok, valid))
+            done.append((m, width, ds))
         if progress is not None:
             progress(f"sweep '{arm}'", n, len(moves))
-    df = pd.DataFrame(rows, columns=TABLE_COLUMNS)
-    df["ok"] = df["ok"].astype("boolean")
-    df.attrs.update(arm=arm, skipped=skipped, methods=methods, warnings=warnings,
-                    cautions=CAUTION_SHORT, title=scenario.title,
-                    scenario=str(scenario.path or ""))
-    df.attrs["widest"] = widest_ok(df) if not df.empty else None
-    df.attrs["verdict"] = verdict(df)
+    seas = [sea] if sea is not None else [s.name for s in scenario.seas]
+    points = [p.name for p in scenario.points]
+    shape = (len(done), len(seas), len(points))
+    kd, height = np.full(shape, np.nan), np.full(shape, np.nan)
+    valid = np.ones(shape, bool)
+    method_names = np.full(shape[:2], "", dtype=object)
+    for i, (_, _, ds) in enumerate(done):
+        kd[i] = ds.point_kd.values
+        height[i] = ds.point_height.values
+        if "point_valid" in ds:
+            valid[i] = ds.point_valid.values
+        method_names[i] = [str(v) for v in ds.sea_method.values]
+    limit = np.array([np.nan if p.limit is None else p.limit for p in scenario.points], float)
+    with np.errstate(invalid="ignore"):
+        ok = np.where(np.isnan(limit), np.nan, (height <= limit).astype(float))
+    result = xr.Dataset(
+        {"entrance_width": ("move", np.array([w for _, w, _ in done], float),
+                            {"long_name": "entrance width: moved head to the nearest other "
+                                          "arm or land", "units": "m"}),
+         "kd": (("move", "sea", "point"), kd, {"long_name": "K' at the point", "units": "1"}),
+         "height": (("move", "sea", "point"), height,
+                    {"long_name": "wave height at the point (H or H1/3)", "units": "m"}),
+         "limit": ("point", limit, {"long_name": "allowable wave height", "units": "m"}),
+         "ok": (("move", "sea", "point"), ok,
+                {"long_name": "height <= limit (1) or above it (0); NaN without a limit",
+                 "flag_values": [0.0, 1.0], "flag_meanings": "over ok"}),
+         "valid": (("move", "sea", "point"), valid,
+                   {"long_name": "value inside the measured validity of its method"}),
+         "method": (("move", "sea"), method_names)},
+        coords={"move": np.array([m for m, _, _ in done], float), "sea": seas,
+                "point": points},
+        attrs=dict(arm=arm, skipped=skipped, warnings=warnings, cautions=CAUTION_SHORT,
+                   title=scenario.title, scenario=str(scenario.path or "")))
+    result["move"].attrs.update(long_name="distance the head moved along its end segment "
+                                          "(positive lengthens)", units="m")
+    table = sweep_table(result)
+    result.attrs["widest"] = widest_ok(table) if not table.empty else None
+    result.attrs["verdict"] = verdict(table)
+    return result
+
+
+def sweep_table(result):
+    """A sweep result as a tidy table: one row per move, sea state and point.
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+        From :func:`sweep`.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns :data:`TABLE_COLUMNS` (``ok`` nullable boolean, NA without a limit);
+        ``attrs`` those of the result.
+    """
+    nm, ns, npnt = (result.sizes[d] for d in ("move", "sea", "point"))
+    rep = ns * npnt
+    ok = result["ok"].values.ravel()
+    df = pd.DataFrame({
+        "move": np.repeat(result["move"].values, rep),
+        "entrance_width": np.repeat(result["entrance_width"].values, rep),
+        "sea": np.tile(np.repeat([str(v) for v in result["sea"].values], npnt), nm),
+        "point": np.tile([str(v) for v in result["point"].values], nm * ns),
+        "kd": result["kd"].values.ravel(), "height": result["height"].values.ravel(),
+        "limit": np.tile(result["limit"].values, nm * ns),
+        "ok": pd.array([pd.NA if np.isnan(v) else bool(v) for v in ok], dtype="boolean"),
+        "valid": result["valid"].values.ravel().astype(bool)}, columns=TABLE_COLUMNS)
+    df.attrs.update(result.attrs)
     return df
+
+
+def _as_table(table):
+    return sweep_table(table) if isinstance(table, xr.Dataset) else table
 
 
 def widest_ok(table):
@@ -325,8 +384,8 @@ def widest_ok(table):
 
     Parameters
     ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
+    table : xarray.Dataset or pandas.DataFrame
+        From :func:`sweep` (or its :func:`sweep_table`).
 
     Returns
     -------
@@ -334,6 +393,7 @@ def widest_ok(table):
         ``(entrance_width, move)`` in metres, or None when no position passes (or no
         point has a limit; see :func:`has_limits`).
     """
+    table = _as_table(table)
     lim = table[table["limit"].notna()]
     if lim.empty:
         return None
@@ -351,13 +411,14 @@ def has_limits(table) -> bool:
 
     Parameters
     ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
+    table : xarray.Dataset or pandas.DataFrame
+        From :func:`sweep` (or its :func:`sweep_table`).
 
     Returns
     -------
     bool
     """
+    table = _as_table(table)
     return bool(table["limit"].notna().any())
 
 
@@ -366,14 +427,15 @@ def verdict(table) -> str:
 
     Parameters
     ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
+    table : xarray.Dataset or pandas.DataFrame
+        From :func:`sweep` (or its :func:`sweep_table`).
 
     Returns
     -------
     str
         The widest passing entrance width (see :func:`widest_ok`), or why there is none.
     """
+    table = _as_table(table)
     if table.empty:
         return "no position of the head could be computed (every move was skipped)"
     if not has_limits(table):
@@ -398,8 +460,8 @@ def sweep_summary(table):
 
     Parameters
     ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
+    table : xarray.Dataset or pandas.DataFrame
+        From :func:`sweep` (or its :func:`sweep_table`).
 
     Returns
     -------
@@ -407,6 +469,7 @@ def sweep_summary(table):
         Index (``move``, ``entrance_width``), one column per point: the largest height
         (m) over the sea states at that position.
     """
+    table = _as_table(table)
     out = table.pivot_table(index=["move", "entrance_width"], columns="point",
                             values="height", aggfunc="max", sort=False)
     out.columns.name = None
