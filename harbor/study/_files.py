@@ -119,3 +119,38 @@ def _open_problem(e: OSError, what: str) -> str:
     if e.errno == errno.ENAMETOOLONG:
         return "the file name is too long"
     return f"cannot open the file ({e.strerror})"
+
+
+#: Largest layout file (GeoPackage, Shapefile, GeoJSON, DXF) opened for import (bytes).
+MAX_LAYOUT_FILE_BYTES = 1024**3
+
+
+def check_file(path, what: str = "input file", max_bytes: int | None = None) -> None:
+    """Refuse, with one line, a path that is not a regular file (or is too large),
+    without reading it: for files opened by other libraries (GDAL, ezdxf).
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The file.
+    what : str
+        What it should be, for the messages.
+    max_bytes : int, optional
+        Largest size accepted, bytes.
+
+    Raises
+    ------
+    InputError
+        As :func:`read_text`: not found, a symbolic-link loop, no permission, a
+        directory, FIFO, device or socket, larger than ``max_bytes``.
+    """
+    file = str(path)
+    try:
+        st = os.stat(file)
+    except OSError as e:
+        raise InputError(_open_problem(e, what), file=file) from None
+    if not stat.S_ISREG(st.st_mode):
+        raise InputError(f"is {_kind(st.st_mode)}, not a {what}", file=file)
+    if max_bytes is not None and st.st_size > max_bytes:
+        raise InputError(f"is {st.st_size / 2**20:.1f} MiB, larger than the "
+                         f"{max_bytes / 2**20:.0f} MiB a {what} may be", file=file)
