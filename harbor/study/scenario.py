@@ -342,6 +342,9 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
     except InputError as e:
         raise r.err(e.problem, "[site]", "crs") from None
     lonlat = bool(crs.is_geographic)
+    # tables that name a layout file (GIS layer, DXF drawing) become plain tables here
+    from harbor.study.layout_files import expand_references
+    data = expand_references(data, path, crs_code, _KEYS)
 
     # --- raw tables (scenario CRS) ------------------------------------------------------
     arm_ts = r.tables(data, "arm")
