@@ -474,7 +474,8 @@ def write_all(result, scenario, out_dir, seas=None, show="kd"):
     list of pathlib.Path
         The files written: per sea state ``map-<sea>.png``, ``sheet-<sea>.pdf``,
         ``isolines-<sea>.geojson`` (``<sea>`` the slugged name), then ``grid.nc`` and
-        ``points.csv``.
+        ``points.csv``, then the GIS files of :func:`harbor.outputs.gis.write_gis`
+        (``kd-<sea>.tif``, ``height-<sea>.tif``, ``harbor.gpkg``).
 
     Notes
     -----
@@ -502,5 +503,7 @@ def write_all(result, scenario, out_dir, seas=None, show="kd"):
         staged.append("grid.nc")
         write_points_csv(result, stage / "points.csv")
         staged.append("points.csv")
+        from harbor.outputs.gis import write_gis
+        staged += write_gis(result, stage, seas=names)
     out = Path(out_dir).resolve()
     return [out / n for n in staged]

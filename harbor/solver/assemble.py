@@ -13,6 +13,7 @@ import xarray as xr
 
 from harbor import __version__
 from harbor.cautions import REFLECTION_NOTE, caution_text
+from harbor.geometry.layout_record import layout_record
 from harbor.geometry.visibility import distance_to_arms, inside_land
 from harbor.errors import InputError
 from harbor.solver.accuracy import accuracy_warnings
@@ -134,7 +135,9 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         ``sea_spreading``, ``sea_method``, ``sea_wavelength`` (m), ``sea_reaching`` (share
         of energy reaching the layout). Attributes: ``title``, ``scenario``, ``crs``,
         ``crs_wkt``, ``convergence_deg``, ``depth``, ``warnings`` (newline-joined),
-        ``cautions``, ``harbor_version``, ``created``, ``method``.
+        ``cautions``, ``harbor_version``, ``created``, ``method``, ``layout`` (arms and
+        land as JSON with WKT in the work frame, see
+        :func:`harbor.geometry.layout_record.layout_record`).
     """
     seas = list(scenario.seas)
     if sea is not None:
@@ -257,6 +260,7 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
             harbor_version=__version__,
             created=_dt.datetime.now(_dt.timezone.utc).replace(microsecond=0).isoformat(),
             method="; ".join(sorted(set(methods))),
+            layout=layout_record(scenario.layout),
         ),
     )
     ds["x"].attrs.update(units="m", long_name="easting (work frame)")
