@@ -156,8 +156,8 @@ def test_map_outputs_agree_with_points(small, tmp_path, capsys):
     code, out, err = run(["map", str(small), "--out", str(out_dir), "--quiet"], capsys)
     assert code == 0, err
     names = sorted(p.name for p in out_dir.iterdir())
-    assert names == ["grid.nc", "isolines-swell.geojson", "map-swell.png", "points.csv",
-                     "sheet-swell.pdf"]
+    assert names == ["grid.nc", "harbor.gpkg", "height-swell.tif", "isolines-swell.geojson",
+                     "kd-swell.tif", "map-swell.png", "points.csv", "sheet-swell.pdf"]
     ds = xr.open_dataset(out_dir / "grid.nc")
     kd = ds["kd"].isel(sea=0) if "sea" in ds["kd"].dims else ds["kd"]
     # pick a few wet grid nodes and ask `harbor points` for them
