@@ -23,8 +23,10 @@ MAP_EXAMPLE = """example:
   harbor map scenarios/demo.toml --out maps
   harbor map scenarios/demo.toml --sea "storm N" --show height --out maps
 
-Writes, for every sea state: map-<sea>.png, sheet-<sea>.pdf, isolines-<sea>.geojson;
-and grid.nc (NetCDF-CF) and points.csv. Nothing is written if any part fails.
+Writes, for every sea state: map-<sea>.png, sheet-<sea>.pdf, isolines-<sea>.geojson,
+kd-<sea>.tif and height-<sea>.tif (Cloud-Optimised GeoTIFF); and grid.nc (NetCDF-CF),
+points.csv and harbor.gpkg (isolines, points, arms, land in the scenario CRS). Nothing
+is written if any part fails.
 """
 
 POINTS_EXAMPLE = """example:

@@ -387,10 +387,9 @@ def _dxf_props(e):
     return props
 
 
-def _dxf_items(doc, pattern, kind, chord_units, err):
-    """Flattened linework or points of the modelspace entities on matching layers."""
-    from ezdxf import path as dxfpath
-
+def _dxf_items(doc, pattern, kind, chord_units, err, sel=None):
+    """Flattened linework or points of the modelspace entities on matching layers
+    (only those whose properties match ``sel`` = (field, value), when given)."""
     msp = doc.modelspace()
     pat = str(pattern).lower()
     ents = [e for e in msp if fnmatch.fnmatchcase(str(e.dxf.layer).lower(), pat)]
@@ -409,6 +408,8 @@ def _dxf_items(doc, pattern, kind, chord_units, err):
         label = f"{t} #{counts[t]} (handle {e.dxf.handle})"
         if t in _DXF_IGNORED:
             continue
+        if sel is not None and not _matches(_dxf_props(e), sel):
+            continue
         if t not in wanted:
             want = "POINT or block references (INSERT)" if kind == "point" else \
                 "lines, polylines, arcs, circles, ellipses or splines"
@@ -420,11 +421,9 @@ def _dxf_items(doc, pattern, kind, chord_units, err):
             out.append((label, xyz[:, :2], False, _dxf_props(e)))
             continue
         try:
-            p = dxfpath.make_path(e)
+            verts = _flatten(e, chord_units)
         except Exception as ex:  # noqa: BLE001 - ezdxf has no common base here
             raise err(f"{label}: cannot read its geometry ({ex})") from None
-        # ezdxf flattens to a maximum distance ("sagitta") between curve and chord
-        verts = np.array([(v.x, v.y, v.z) for v in p.flattening(chord_units)], float)
         if len(verts) < 2:
             raise err(f"{label} has fewer than two vertices")
         _check_2d(verts, label, err)
@@ -434,6 +433,44 @@ def _dxf_items(doc, pattern, kind, chord_units, err):
     if not out:
         raise err("the layer holds no usable entity (only annotation)")
     return out
+
+
+def _flatten(e, tol) -> np.ndarray:
+    """WCS vertices (n, 3) of a DXF curve entity, chords within ``tol`` of the curve.
+
+    Arcs and circles (also the bulge arcs of polylines) are flattened on the exact
+    circle, ellipses on the exact ellipse and splines on the exact B-spline (ezdxf's
+    entity methods), so every vertex lies on the curve and only the chords depart
+    from it, by at most ``tol`` at their midpoints.
+    """
+    t = e.dxftype()
+    if t == "LINE":
+        pts = [e.dxf.start, e.dxf.end]
+    elif t in ("ARC", "CIRCLE"):
+        pts = list(e.flattening(tol))
+    elif t in ("ELLIPSE", "SPLINE"):
+        pts = list(e.flattening(tol))
+    else:  # LWPOLYLINE, POLYLINE: straight and bulge segments, in drawing order
+        start = (next(iter(e.vertices_in_wcs())) if t == "LWPOLYLINE"
+                 else next(iter(e.points_in_wcs())))
+        pts = [start]
+        for sub in e.virtual_entities():
+            piece = _flatten(sub, tol)
+            end = np.array([pts[-1].x, pts[-1].y, pts[-1].z], float)
+            # ARC entities always run counter-clockwise: turn clockwise bulges round
+            if np.linalg.norm(piece[-1] - end) < np.linalg.norm(piece[0] - end):
+                piece = piece[::-1]
+            pts += [_V(*v) for v in piece[1:]]
+    return np.array([(v.x, v.y, v.z) for v in pts], float)
+
+
+class _V:
+    """A minimal vertex with x, y, z (what ezdxf's Vec3 offers)."""
+
+    __slots__ = ("x", "y", "z")
+
+    def __init__(self, x, y, z):
+        self.x, self.y, self.z = float(x), float(y), float(z)
 
 
 def _dxf_units(doc, crs, err_file):
@@ -550,9 +587,9 @@ def read_layout(path, arms=None, land=None, points=None, *, name_field="name",
             def err(problem, _l=layer):
                 return err_file(problem, _l)
 
-            items = _dxf_items(doc, layer, kind, cu, err)
-            features += _make_features(kind, layer, select, items, fields, err,
-                                       dxf=True)
+            sel = _split_select(select, err)
+            items = _dxf_items(doc, layer, kind, cu, err, sel)
+            features += _make_features(kind, select, items, fields, err, dxf=True)
     else:
         if suffix not in GIS_SUFFIXES:
             raise err_file(f"unknown layout file type {suffix or '(none)'!r}: give a "
@@ -573,10 +610,11 @@ def read_layout(path, arms=None, land=None, points=None, *, name_field="name",
             def err(problem, _l=lname):
                 return err_file(problem, _l)
 
+            sel = _split_select(select, err)
             parts = [(label, xy, False, props) for label, g, props in items
+                     if sel is None or _matches(props, sel)
                      for xy in _gis_parts(kind, label, g, err)]
-            features += _make_features(kind, lname, select, parts, fields, err,
-                                       dxf=False)
+            features += _make_features(kind, select, parts, fields, err, dxf=False)
     seen = {}
     for f in features:
         key = (f.kind, f.name)
@@ -588,13 +626,18 @@ def read_layout(path, arms=None, land=None, points=None, *, name_field="name",
                       chord=float(chord), selectors=sels)
 
 
-def _make_features(kind, layer, select, items, fields, err, dxf):
+def _matches(props, sel) -> bool:
+    v = _field(props, sel[0])
+    if isinstance(v, float) and v.is_integer():
+        v = int(v)
+    return v is not None and str(v) == sel[1]
+
+
+def _make_features(kind, select, items, fields, err, dxf):
     sel = _split_select(select, err)
     out = []
     n = 0
     for label, xy, closed, props in items:
-        if sel is not None and str(_field(props, sel[0])) != sel[1]:
-            continue
         n += 1
         name = _field(props, fields["name"])
         name = f"{kind} {n}" if _missing(name) else str(name).strip()
