@@ -23,6 +23,10 @@ from pyogrio import raw
 from scipy.interpolate import RegularGridInterpolator
 
 from harbor.cli import main
+from harbor.outputs.export import write_netcdf
+from harbor.outputs.gis import write_gis
+from harbor.solver.assemble import solve
+from harbor.study.scenario import load_scenario
 
 SCENARIO = """
 title = "Cove of Tarrow (invented test harbour)"
@@ -221,12 +225,22 @@ spacing = 25.0
 """
 
 
+def solve_and_export(text, tmp_path):
+    """grid.nc and the GIS files of a scenario, through the Python API."""
+    sc = tmp_path / "scenario.toml"
+    sc.write_text(text)
+    res = solve(load_scenario(sc))
+    out = tmp_path / "gis"
+    out.mkdir()
+    write_netcdf(res, out / "grid.nc")
+    names = write_gis(res, out)
+    return out, names
+
+
 def test_lonlat_scenario_raster_in_work_frame_gpkg_in_lonlat(tmp_path):
     # Open Atlantic west of the Rockall Trough (57.0 N, 12.0 W): no harbour stands there.
-    sc = tmp_path / "ll.toml"
-    sc.write_text(LONLAT)
-    out = tmp_path / "maps"
-    assert main(["map", str(sc), "--out", str(out), "--quiet"]) == 0
+    out, names = solve_and_export(LONLAT, tmp_path)
+    assert names == ["kd-north-swell.tif", "height-north-swell.tif", "harbor.gpkg"]
     nc = xr.open_dataset(out / "grid.nc")
     with rasterio.open(out / "kd-north-swell.tif") as src:
         # a regular metre grid is not regular in lon/lat: the raster keeps the work
@@ -252,3 +266,64 @@ def test_lonlat_scenario_raster_in_work_frame_gpkg_in_lonlat(tmp_path):
     _, _, geoms, _ = raw.read(path, layer="arms")
     np.testing.assert_allclose(shapely.get_coordinates(shapely.from_wkb(geoms[0])),
                                tomllib.loads(LONLAT)["arm"][0]["line"], atol=1e-8)
+
+
+# An invented cove in a CRS in US survey feet (NAD83 / California zone 3, EPSG:2227),
+# placed inland in the Central Valley (37.3 N, 120.3 W), where no harbour stands.
+_FT = 1200.0 / 3937.0  # m per US survey foot (definition)
+_E, _N = (round(v, -1) for v in pyproj.Transformer.from_crs(
+    4326, 2227, always_xy=True).transform(-120.3, 37.3))
+
+
+def _ft(dx, dy):
+    return f"[{_E + dx:.1f}, {_N + dy:.1f}]"
+
+
+FEET = f"""
+title = "Invented cove in feet"
+[site]
+crs = "EPSG:2227"
+depth = 6.0
+[[arm]]
+name = "long arm"
+line = [{_ft(0, 0)}, {_ft(0, 700)}, {_ft(230, 700)}]
+[[land]]
+name = "bank"
+outline = [{_ft(-400, 30)}, {_ft(1200, 30)}, {_ft(1200, -600)}, {_ft(-400, -600)}]
+[[sea]]
+name = "north"
+kind = "regular"
+height = 1.0
+period = 6.0
+from = 20.0
+[grid]
+spacing = 10.0
+bounds = [{_E - 300:.1f}, {_N + 60:.1f}, {_E + 900:.1f}, {_N + 1300:.1f}]
+"""
+
+
+def test_feet_scenario_raster_in_the_scenario_crs(tmp_path):
+    out, _ = solve_and_export(FEET, tmp_path)
+    nc = xr.open_dataset(out / "grid.nc")
+    with rasterio.open(out / "kd-north.tif") as src:
+        # the metre work frame is the same projection rescaled: the raster keeps the
+        # scenario's own CRS, pixels 10 m = 10 / 0.3048006 US survey feet
+        assert src.crs.to_epsg() == 2227
+        assert src.tags()["RASTER_CRS"] == "scenario CRS EPSG:2227"
+        assert src.transform.a == pytest.approx(10.0 / _FT, rel=1e-9)
+        assert src.transform.e == pytest.approx(-10.0 / _FT, rel=1e-9)
+        # a node placed by the raster (feet) and by grid.nc's lon/lat agree (pyproj)
+        r, c = src.height // 3, src.width // 2
+        x, y = rasterio.transform.xy(src.transform, r, c)
+        lon, lat = pyproj.Transformer.from_crs(2227, 4326, always_xy=True).transform(x, y)
+        j = src.height - 1 - r
+        assert lon == pytest.approx(float(nc["lon"].values[j, c]), abs=1e-8)
+        assert lat == pytest.approx(float(nc["lat"].values[j, c]), abs=1e-8)
+        band = src.read(1, masked=True)[::-1]
+    z = nc["kd"].sel(sea="north").transpose("y", "x").values
+    good = ~band.mask
+    np.testing.assert_allclose(band.data[good], z[good], rtol=2e-7, atol=1e-7)
+    # the GeoPackage is in feet as well: the arm where the scenario put it
+    _, _, geoms, _ = raw.read(out / "harbor.gpkg", layer="arms")
+    np.testing.assert_allclose(shapely.get_coordinates(shapely.from_wkb(geoms[0])),
+                               tomllib.loads(FEET)["arm"][0]["line"], atol=1e-3 / _FT)

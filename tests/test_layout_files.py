@@ -370,3 +370,35 @@ def test_bad_referenced_file_is_refused_by_check(make, tmp_path, capsys):
     assert f"h.toml: [[{kind}]] #1: key 'file': {name}" in err
     for w in words:
         assert w in err
+
+
+@pytest.mark.filterwarnings("ignore:'crs' was not provided")  # on purpose: no .prj
+def test_shapefile_without_prj_needs_a_crs(tmp_path, capsys):
+    geoms = [shapely.LineString(a["line"]) for a in DEMO["arm"]]
+    raw.write(str(tmp_path / "arms.shp"), shapely.to_wkb(np.array(geoms, dtype=object)),
+              [np.array([a["name"] for a in DEMO["arm"]], dtype=object),
+               np.array([0.4, 1.0])], ["name", "kr"], driver="ESRI Shapefile",
+              geometry_type="LineString")  # no crs: no .prj file
+    out = tmp_path / "a.toml"
+    code = main(["import", str(tmp_path / "arms.shp"), "--arms", "", "--out", str(out)])
+    assert code == 2 and "no CRS" in capsys.readouterr().err and not out.exists()
+    code = main(["import", str(tmp_path / "arms.shp"), "--arms", "", "--crs",
+                 "EPSG:32630", "--reflection-field", "kr", "--out", str(out)])
+    assert code == 0
+    text = out.read_text()
+    back = tomllib.loads(text)
+    for a, b in zip(DEMO["arm"], back["arm"]):
+        np.testing.assert_allclose(b["line"], a["line"], atol=1e-3)
+    # the reflection coefficients travel with the arms (as a key, or as a comment
+    # while the scenario reader has no such key)
+    assert "reflection = 0.4" in text and "reflection = 1" in text
+
+
+def test_reflection_coefficient_outside_0_1_is_refused(tmp_path, capsys):
+    raw.write(str(tmp_path / "b.gpkg"), shapely.to_wkb(np.array(
+        [shapely.LineString(ARM)], dtype=object)), [np.array([1.5])], ["kr"],
+        layer="arms", driver="GPKG", geometry_type="LineString", crs="EPSG:32630")
+    code = main(["import", str(tmp_path / "b.gpkg"), "--arms", "arms",
+                 "--reflection-field", "kr", "--out", str(tmp_path / "o.toml")])
+    err = capsys.readouterr().err
+    assert code == 2 and "between 0 and 1, got 1.5" in err and "layer 'arms'" in err

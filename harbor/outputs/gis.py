@@ -116,21 +116,44 @@ def raster_frame(result):
     return _work_crs(result).to_wkt(), work, False
 
 
+def _near_arms(x, y, layout, dist):
+    """(ny, nx) True at nodes within ``dist`` (m) of an arm, and the arms' geometry.
+
+    Only the window of the grid around the arms' bounding box is tested, so the cost
+    follows the arms' extent rather than the grid's size.
+    """
+    mask = np.zeros((y.size, x.size), bool)
+    if layout is None or not layout.arms or x.size == 0 or y.size == 0:
+        return mask, None
+    geom = shapely.MultiLineString([np.asarray(a.line, float) for a in layout.arms])
+    shapely.prepare(geom)
+    x0, y0, x1, y1 = geom.bounds
+    ix = slice(int(np.searchsorted(x, x0 - dist)), int(np.searchsorted(x, x1 + dist,
+                                                                        "right")))
+    iy = slice(int(np.searchsorted(y, y0 - dist)), int(np.searchsorted(y, y1 + dist,
+                                                                        "right")))
+    X, Y = np.meshgrid(x[ix], y[iy])
+    if X.size:
+        mask[iy, ix] = shapely.dwithin(geom, shapely.points(X, Y), dist)
+    return mask, geom
+
+
+def _steps(x, y):
+    hx = float(x[1] - x[0]) if x.size > 1 else 1.0
+    hy = float(y[1] - y[0]) if y.size > 1 else hx
+    return hx, hy
+
+
 def _arms_cells(result, layout) -> np.ndarray:
     """(ny, nx) True where an arm crosses the pixel square around a node."""
     x = np.asarray(result["x"].values, float)
     y = np.asarray(result["y"].values, float)
-    mask = np.zeros((y.size, x.size), bool)
-    if layout is None or not layout.arms or x.size == 0:
-        return mask
-    hx = float(x[1] - x[0]) if x.size > 1 else 1.0
-    hy = float(y[1] - y[0]) if y.size > 1 else hx
-    geom = shapely.MultiLineString([np.asarray(a.line, float) for a in layout.arms])
-    shapely.prepare(geom)
-    X, Y = np.meshgrid(x, y)
+    hx, hy = _steps(x, y)
     # only nodes within the half-diagonal can have their square crossed
-    near = shapely.dwithin(geom, shapely.points(X, Y), 0.5 * math.hypot(hx, hy) * 1.001)
+    near, geom = _near_arms(x, y, layout, 0.5 * math.hypot(hx, hy) * 1.001)
+    mask = np.zeros_like(near)
     if near.any():
+        X, Y = np.meshgrid(x, y)
         xs, ys = X[near], Y[near]
         boxes = shapely.box(xs - hx / 2, ys - hy / 2, xs + hx / 2, ys + hy / 2)
         mask[near] = shapely.intersects(geom, boxes)
@@ -251,14 +274,8 @@ def _near_arm_nodes(result, layout):
     between its two sides would draw every level along it (the rule of the maps)."""
     x = np.asarray(result["x"].values, float)
     y = np.asarray(result["y"].values, float)
-    X, Y = np.meshgrid(x, y)
-    if layout is None or not layout.arms or X.size == 0:
-        return np.zeros(X.shape, bool)
-    h = max(float(np.max(np.diff(x))) if x.size > 1 else 0.0,
-            float(np.max(np.diff(y))) if y.size > 1 else 0.0)
-    geom = shapely.MultiLineString([np.asarray(a.line, float) for a in layout.arms])
-    shapely.prepare(geom)
-    return shapely.dwithin(geom, shapely.points(X, Y), h / math.sqrt(2.0) * 1.001)
+    h = max(_steps(x, y))
+    return _near_arms(x, y, layout, h / math.sqrt(2.0) * 1.001)[0]
 
 
 def _xy_scenario(result, xy, to_s):
