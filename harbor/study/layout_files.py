@@ -895,8 +895,9 @@ def import_layout(path, out, arms=None, land=None, points=None, *, name_field="n
                              spacing=sc0.grid.spacing)
         sc = scenario_from_dict(_toml.loads(text), path=str(outp))
     except InputError as e:
-        raise InputError(f"the layout read from {path} is not a valid scenario: "
-                         f"{e.line()}", file=str(path)) from None
+        what = ": ".join(v for v in (e.where, e.problem) if v)
+        raise InputError(f"the layout is not a valid scenario ({what})",
+                         file=str(path)) from None
     write_text_atomic(outp, text)
     return outp, sc
 
