@@ -12,7 +12,7 @@ import numpy as np
 import xarray as xr
 
 from harbor import __version__
-from harbor.cautions import REFLECTION_NOTE, caution_text
+from harbor.cautions import REFLECTION_NOTE, Notice, as_notice, caution_text
 from harbor.geometry.layout_record import layout_record
 from harbor.geometry.visibility import distance_to_arms, inside_land
 from harbor.errors import InputError
@@ -133,7 +133,11 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         ``point_kd``, ``point_height``, ``point_period_ratio`` (sea, point); per sea
         ``sea_kind``, ``sea_height``, ``sea_period``, ``sea_from`` (deg true),
         ``sea_spreading``, ``sea_method``, ``sea_wavelength`` (m), ``sea_reaching`` (share
-        of energy reaching the layout). Attributes: ``title``, ``scenario``, ``crs``,
+        of energy reaching the layout); ``valid`` (sea, y, x) and ``point_valid`` (sea,
+        point), True where the value is inside the measured validity of its method;
+        the validity warnings and notes as records along dimension ``notice``
+        (``notice_code``, ``notice_text``, ``notice_sea`` and ``notice_point``, "" for
+        all or none, ``notice_level``; read them with :func:`notices`). Attributes: ``title``, ``scenario``, ``crs``,
         ``crs_wkt``, ``convergence_deg``, ``depth``, ``warnings`` (newline-joined),
         ``cautions``, ``harbor_version``, ``created``, ``method``, ``layout`` (arms and
         land as JSON with WKT in the work frame, see
@@ -169,7 +173,9 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
     pkd = np.full((ns, npnt), np.nan)
     pratio = np.full((ns, npnt), np.nan)
     methods, wavelengths, reaching = [], [], []
-    warnings: list[str] = []
+    notes: list[Notice] = []
+    valid = np.ones((ns, ny, nx), bool)
+    pvalid = np.ones((ns, npnt), bool)
     wet = ~dry
     allx = np.concatenate([X[wet], ppx])
     ally = np.concatenate([Y[wet], ppy])
@@ -187,21 +193,31 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         L = _sea_wavelength(s, site)
         wavelengths.append(L)
         reaching.append(reach)
-        more = layout_warnings(scenario.layout, L, [(p[0], p[1], p[2]) for p in pts])
+        more = list(layout_warnings(scenario.layout, L, [(p[0], p[1], p[2]) for p in pts]))
         if method == "field":
             from harbor.solver.accuracy import field_method_notes
 
             more += field_method_notes(scenario, s)
         else:
             alpha = float(site.travel_angle(s.from_deg))
-            more += accuracy_warnings(scenario.layout, L, directions=[(f"sea '{s.name}'", alpha)])
+            off = accuracy_warnings(scenario.layout, L,
+                                    directions=[(f"sea '{s.name}'", alpha)])
+            if off:
+                # measured outside the method's validity for this layout: no value of this
+                # sea may pass as trustworthy (finer, per-region rules may relax this)
+                valid[i] = False
+                pvalid[i] = False
+            more += off
         for w in more:
-            if w not in warnings:
-                warnings.append(w)
+            w = as_notice(w).for_sea(s.name)
+            if w.code == "near-head" and w.point in pnames:
+                pvalid[i, pnames.index(w.point)] = False
+            notes.append(w)
         if reach < 0.5:
-            warnings.append(f"sea '{s.name}' (from {s.from_deg:g} deg) mostly does not reach "
-                            f"the harbour from open water ({100 * reach:.0f} % of its energy "
-                            f"does): its heights inside are small or zero")
+            notes.append(Notice(
+                "not-reaching", f"sea '{s.name}' (from {s.from_deg:g} deg) mostly does not "
+                f"reach the harbour from open water ({100 * reach:.0f} % of its energy "
+                f"does): its heights inside are small or zero", sea=s.name))
         hb = BREAKING_RATIO * site.depth
         over_pts = [pnames[j] for j in range(npnt) if pkd[i, j] * s.height > hb]
         n_over = int(np.sum(kd[i] * s.height > hb))
@@ -211,10 +227,14 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
                 where.append("points " + ", ".join(f"'{n}'" for n in over_pts))
             if n_over:
                 where.append(f"{n_over} grid points")
-            warnings.append(f"sea '{s.name}': heights above the depth-limited breaking height "
-                            f"0.78 h = {hb:.2f} m at {' and '.join(where)} (flagged, not "
-                            f"changed: waves there would break)")
-    warnings.append(REFLECTION_NOTE)
+            notes.append(Notice(
+                "breaking", f"sea '{s.name}': heights above the depth-limited breaking "
+                f"height 0.78 h = {hb:.2f} m at {' and '.join(where)} (flagged, not "
+                f"changed: waves there would break)", sea=s.name))
+    if method != "field":
+        notes.append(Notice("reflection-neglected", REFLECTION_NOTE, level="note"))
+    # one sentence once in the joined text, whatever number of seas it concerns
+    warnings = list(dict.fromkeys(notes))
 
     H = np.array([s.height for s in seas], float)
     pcx, pcy = site.from_work(ppx, ppy) if npnt else (ppx, ppy)
@@ -245,6 +265,11 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
             sea_method=(("sea",), np.array(methods, dtype=object)),
             sea_wavelength=(("sea",), np.array(wavelengths), {"units": "m"}),
             sea_reaching=(("sea",), np.array(reaching), {"units": "1"}),
+            valid=(("sea", "y", "x"), valid,
+                   {"long_name": "value inside the measured validity of its method"}),
+            point_valid=(("sea", "point"), pvalid,
+                         {"long_name": "value inside the measured validity of its method"}),
+            **notices_variables(notes),
         ),
         coords=dict(sea=[s.name for s in seas], x=gx, y=gy, point=pnames),
         attrs=dict(
@@ -268,6 +293,62 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
     return ds
 
 
+def notices_variables(notes):
+    """Dataset variables (dimension ``notice``) holding a list of notices.
+
+    Parameters
+    ----------
+    notes : sequence of harbor.cautions.Notice or str
+
+    Returns
+    -------
+    dict
+        ``notice_code``, ``notice_text``, ``notice_sea``, ``notice_point``,
+        ``notice_level``, each a tuple ``(("notice",), values)`` of strings ("" for
+        none).
+    """
+    notes = [as_notice(n) for n in notes]
+
+    def col(get):
+        return (("notice",), np.array([get(n) or "" for n in notes], dtype=object))
+
+    return dict(notice_code=col(lambda n: n.code), notice_text=col(lambda n: n.text),
+                notice_sea=col(lambda n: n.sea), notice_point=col(lambda n: n.point),
+                notice_level=col(lambda n: n.level))
+
+
+def notices(ds, sea=None, level=None):
+    """The validity warnings and notes of a result, as :class:`harbor.cautions.Notice`.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        A result of :func:`solve` (or a file written from one and read back).
+    sea : str, optional
+        Keep those that concern this sea state or every sea state.
+    level : {"warning", "note"}, optional
+        Keep only this level.
+
+    Returns
+    -------
+    list of harbor.cautions.Notice
+        In the order they were raised, each sentence once per sea state.
+    """
+    if "notice_text" not in ds:
+        text = str(ds.attrs.get("warnings", "") or "")
+        return [Notice("general", t) for t in text.split("\n") if t.strip()]
+    out = []
+    for code, text, s, p, lev in zip(*(ds[f"notice_{k}"].values.tolist() for k in
+                                        ("code", "text", "sea", "point", "level"))):
+        n = Notice(code, text, sea=s, point=p, level=lev)
+        if sea is not None and n.sea not in (None, sea):
+            continue
+        if level is not None and n.level != level:
+            continue
+        out.append(n)
+    return out
+
+
 def check(scenario):
     """Validity warnings of a scenario without solving the grid.
 
@@ -277,7 +358,8 @@ def check(scenario):
 
     Returns
     -------
-    list of str
+    list of harbor.cautions.Notice
+        Each sentence once (the sea states it concerns are in its ``sea``, the first).
     """
     ds = solve(scenario, grid=False)
-    return [w for w in ds.attrs["warnings"].split("\n") if w]
+    return list(dict.fromkeys(notices(ds)))
