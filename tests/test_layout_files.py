@@ -10,8 +10,10 @@ against pyproj. The demo harbour (Port Tellivar) is invented.
 from __future__ import annotations
 
 import json
-import math
-import tomllib
+try:  # Python >= 3.11
+    import tomllib
+except ModuleNotFoundError:  # pragma: no cover - Python 3.10
+    import tomli as tomllib
 from pathlib import Path
 
 import ezdxf
