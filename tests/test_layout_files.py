@@ -404,3 +404,30 @@ def test_reflection_coefficient_outside_0_1_is_refused(tmp_path, capsys):
                  "--reflection-field", "kr", "--out", str(tmp_path / "o.toml")])
     err = capsys.readouterr().err
     assert code == 2 and "between 0 and 1, got 1.5" in err and "layer 'arms'" in err
+
+
+def test_multipart_parts_are_numbered_and_duplicate_names_refused(tmp_path, capsys):
+    a = shapely.LineString(ARM)
+    b = shapely.LineString([(302900.0, 4985900.0), (303000.0, 4986100.0)])
+    raw.write(str(tmp_path / "m.gpkg"), shapely.to_wkb(np.array(
+        [shapely.MultiLineString([a, b])], dtype=object)),
+        [np.array(["twin"], dtype=object)], ["name"], layer="arms", driver="GPKG",
+        geometry_type="MultiLineString", crs="EPSG:32630")
+    lay = read_layout(tmp_path / "m.gpkg", arms="arms")
+    assert [f.name for f in lay.of("arm")] == ["twin (1)", "twin (2)"]
+    # two separate features with one name: which is which cannot be told, so refused
+    _gpkg(tmp_path / "d.gpkg", [a, b], "arms", "LineString")
+    raw.write(str(tmp_path / "d.gpkg"), shapely.to_wkb(np.array([a, b], dtype=object)),
+              [np.array(["twin", "twin"], dtype=object)], ["name"], layer="arms2",
+              driver="GPKG", geometry_type="LineString", crs="EPSG:32630")
+    code = main(["import", str(tmp_path / "d.gpkg"), "--arms", "arms2", "--out",
+                 str(tmp_path / "o.toml")])
+    err = capsys.readouterr().err
+    assert code == 2 and "both named 'twin'" in err and "layer 'arms2'" in err
+
+
+def test_reference_table_with_an_unknown_key_is_refused(tmp_path):
+    sc = tmp_path / "h.toml"
+    sc.write_text(SITE + '[[arm]]\nfile = "d.gpkg"\nlayr = "arms"\n' + SEA)
+    with pytest.raises(InputError, match=r"key 'layr': unknown key; did you mean 'layer'"):
+        load_scenario(sc)

@@ -15,6 +15,7 @@ Geometry only: shapes, names and attributes, never waves. Every problem with a f
 
 from __future__ import annotations
 
+import difflib
 import fnmatch
 import json
 import math
@@ -431,6 +432,9 @@ def _dxf_items(doc, pattern, kind, chord_units, err, sel=None):
                       or t == "CIRCLE")
         out.append((label, verts[:, :2], closed, _dxf_props(e)))
     if not out:
+        if sel is not None:
+            raise err(f"no entity has {sel[0]} = {sel[1]!r} (empty selection for the "
+                      f"{kind}s)")
         raise err("the layer holds no usable entity (only annotation)")
     return out
 
@@ -638,6 +642,8 @@ def _make_features(kind, select, items, fields, err, dxf):
     out = []
     n = 0
     for label, xy, closed, props in items:
+        if sel is not None and not _matches(props, sel):
+            continue
         n += 1
         name = _field(props, fields["name"])
         name = f"{kind} {n}" if _missing(name) else str(name).strip()
@@ -659,16 +665,17 @@ def _make_features(kind, select, items, fields, err, dxf):
             raise err(f"no feature has {sel[0]} = {sel[1]!r} (empty selection for the "
                       f"{kind}s)")
         raise err(f"the layer holds no {kind}")
-    # multi-part features share a name: number the parts
-    names = [f.name for f in out]
-    counts = {nm: names.count(nm) for nm in names}
-    seen = {}
+    # the parts of one multi-part feature share its name: number them (two separate
+    # features with one name are refused later, as duplicates)
+    labels = [it[0] for it in items if sel is None or _matches(it[3], sel)]
+    parts = {lb: labels.count(lb) for lb in labels}
+    k = {}
     final = []
-    for f in out:
-        if counts[f.name] > 1 and not dxf:
-            seen[f.name] = seen.get(f.name, 0) + 1
-            f = LayoutFeature(f.kind, f"{f.name} ({seen[f.name]})", f.coords,
-                              f.reflection, f.limit)
+    for lb, f in zip(labels, out):
+        if parts[lb] > 1:
+            k[lb] = k.get(lb, 0) + 1
+            f = LayoutFeature(f.kind, f"{f.name} ({k[lb]})", f.coords, f.reflection,
+                              f.limit)
         final.append(f)
     return final
 
@@ -976,6 +983,14 @@ def expand_references(data: dict, path: str, site_crs: str, keys: dict) -> dict:
                 if k in t:
                     raise err("a table that reads a file takes its names and vertices "
                               "from the file; remove it (or remove 'file')", k)
+            allowed = [k for k in REFERENCE_KEYS + tuple(keys.get(kind, ()))
+                       if k not in (geom_key[kind], "name")]
+            for k in t:
+                if k not in allowed:
+                    near = difflib.get_close_matches(str(k), allowed, n=1, cutoff=0.5)
+                    hint = (f"; did you mean '{near[0]}'?" if near else
+                            f"; valid keys: {', '.join(allowed)}")
+                    raise err(f"unknown key{hint}", str(k))
             for k in ("file", "layer", "select", "name_field", "reflection_field",
                       "limit_field", "crs"):
                 if k in t and (not isinstance(t[k], str) or not t[k].strip()):
