@@ -134,15 +134,15 @@ def test_geopackage_layers_and_attributes(run):
 
     meta, _, geoms, values = raw.read(path, layer="points")
     f = dict(zip(meta["fields"], values))
-    assert list(meta["fields"]) == ["sea", "point", "kd", "height_m", "period_ratio",
+    assert list(meta["fields"]) == ["sea", "name", "kd", "height_m", "period_ratio",
                                     "limit_m", "ok", "status"]
     pts = {p["name"]: p for p in scen["point"]}
     nc = xr.open_dataset(out / "grid.nc")
     for i, g in enumerate(shapely.from_wkb(geoms)):
-        p = pts[f["point"][i]]
+        p = pts[f["name"][i]]
         # the point where the scenario put it (to 1 mm)
         assert math.hypot(g.x - p["at"][0], g.y - p["at"][1]) < 1e-3
-        h = float(nc["point_height"].sel(sea=f["sea"][i], point=f["point"][i]))
+        h = float(nc["point_height"].sel(sea=f["sea"][i], point=f["name"][i]))
         assert f["height_m"][i] == pytest.approx(h, rel=1e-12)
         if "limit" in p:
             assert f["limit_m"][i] == p["limit"]
@@ -189,12 +189,15 @@ def test_result_geopackage_imports_back_to_the_same_layout(run, tmp_path):
     scen, out = run
     target = tmp_path / "again.toml"
     code = main(["import", str(out / "harbor.gpkg"), "--arms", "arms", "--land", "land",
+                 "--points", "points:sea=swell", "--limit-field", "limit_m",
                  "--out", str(target), "--depth", "8"])
     assert code == 0
     back = tomllib.loads(target.read_text())
     for a, b in zip(scen["arm"], back["arm"]):
         assert a["name"] == b["name"]
         np.testing.assert_allclose(b["line"], a["line"], atol=1e-3)
+    assert [(p["name"], p["at"], p.get("limit")) for p in back["point"]] == \
+        [(p["name"], p["at"], p.get("limit")) for p in scen["point"]]
     ring = shapely.Polygon(back["land"][0]["outline"])
     want = shapely.Polygon(scen["land"][0]["outline"])
     assert ring.symmetric_difference(want).area < 1e-3

@@ -329,7 +329,7 @@ def write_geopackage(result, path, seas=None, levels=GPKG_LEVELS):
     - ``isolines`` (MultiLineString; only when the result has a grid): ``sea``,
       ``level`` (K'), ``height_m`` (= level × incident height: each K' isoline is an
       isoline of H or H1/3 too), ``quantity`` ("kd"), ``method``;
-    - ``points`` (Point; one feature per sea state and point): ``sea``, ``point``,
+    - ``points`` (Point; one feature per sea state and point): ``sea``, ``name``,
       ``kd``, ``height_m``, ``period_ratio`` (random seas), ``limit_m`` (null without a
       limit), ``ok`` (height <= limit; null without a limit), ``status``
       ("ok", "over" or "");
@@ -388,7 +388,7 @@ def write_geopackage(result, path, seas=None, levels=GPKG_LEVELS):
             sxy = _xy_scenario(result, np.column_stack([px, py]), to_s)
             lim = np.asarray(result["point_limit"].values, float) \
                 if "point_limit" in result else np.full(px.size, np.nan)
-            geoms, rows = [], {k: [] for k in ("sea", "point", "kd", "height_m",
+            geoms, rows = [], {k: [] for k in ("sea", "name", "kd", "height_m",
                                                 "period_ratio", "limit_m", "ok", "status")}
             for s in names:
                 r = result.sel(sea=s)
@@ -401,7 +401,7 @@ def write_geopackage(result, path, seas=None, levels=GPKG_LEVELS):
                     known = bool(np.isfinite(lim[j]) and np.isfinite(h[j]))
                     ok = bool(h[j] <= lim[j]) if known else False
                     rows["sea"].append(s)
-                    rows["point"].append(str(pn))
+                    rows["name"].append(str(pn))
                     rows["kd"].append(kd[j])
                     rows["height_m"].append(h[j])
                     rows["period_ratio"].append(pr[j])
@@ -409,12 +409,12 @@ def write_geopackage(result, path, seas=None, levels=GPKG_LEVELS):
                     rows["ok"].append((ok, not known))
                     rows["status"].append(("ok" if ok else "over") if known else "")
             fields = {k: np.array(v, dtype=object) for k, v in rows.items()
-                      if k in ("sea", "point", "status")}
+                      if k in ("sea", "name", "status")}
             for k in ("kd", "height_m", "period_ratio", "limit_m"):
                 fields[k] = np.array(rows[k], float)
             fields["ok"] = (np.array([v for v, _ in rows["ok"]], bool),
                             np.array([m for _, m in rows["ok"]], bool))
-            order = ["sea", "point", "kd", "height_m", "period_ratio", "limit_m", "ok",
+            order = ["sea", "name", "kd", "height_m", "period_ratio", "limit_m", "ok",
                      "status"]
             _write_layer(tmp, "points", geoms, {k: fields[k] for k in order}, "Point",
                          crs, None if written else meta)
