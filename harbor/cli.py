@@ -579,7 +579,7 @@ def build_parser():
 
     method_opt = _add_method_option
 
-    sp = sub.add_parser("map", help="sheltering maps, PDF sheets, GeoJSON, NetCDF and CSV for every sea state",
+    sp = sub.add_parser("map", help="sheltering maps, PDF sheets, GeoJSON, NetCDF, CSV, GeoTIFF and GeoPackage for every sea state",
                         epilog=MAP_EXAMPLE + "\n" + EPILOG_TAIL, formatter_class=fmt)
     sp.add_argument("scenario", help="scenario file (TOML)")
     sp.add_argument("--out", default="harbor-out", help="output folder (default harbor-out)")
