@@ -34,7 +34,9 @@ POINTS_EXAMPLE = """example:
   harbor points scenarios/demo.toml --at 302900 4986150 --at 302980 4986100 --sea "swell NW"
   harbor points scenarios/demo.toml --json
 
-CSV columns: sea,point,x,y,kd,height (+ period_ratio when a random sea is listed);
+CSV columns: sea,point,x,y,kd,height (+ period_ratio when a random sea is listed), then
+limit,ok,valid (valid is false where the method is outside its measured validity);
+warnings and the caution go to stderr;
 x, y in the scenario's CRS (easting or longitude first).
 """
 
@@ -59,6 +61,32 @@ DEMO_EXAMPLE = """example:
 
 Runs the bundled demo scenario (Port Tellivar, an invented harbour) and writes every
 output of `harbor map` into the folder, then prints the berth table.
+"""
+
+
+SWEEP_EXAMPLE = """example:
+  harbor sweep scenarios/demo.toml --arm "west arm" --move -40 60 10 --out screening
+  harbor sweep scenarios/demo.toml --arm "east arm" --move 0 50 5 --sea "storm N"
+
+Moves the free head of the arm along its end segment by each distance from MIN to MAX
+in steps of STEP metres (positive lengthens the arm and narrows the entrance), solves
+every sea state (or --sea) at the scenario's points, and writes sweep-<arm>.csv
+(columns move,entrance_width,sea,point,kd,height,limit,ok,valid) and sweep-<arm>.png. Moves
+that would make arms cross, put the head in land or shorten the arm past the other end
+of its end segment are reported and skipped.
+"""
+
+CLIMATE_EXAMPLE = """example:
+  harbor climate scenarios/demo.toml --table scenarios/demo-climate.csv --out screening
+  harbor climate scenarios/demo.toml --table scenarios/demo-climate.csv \\
+      --arm "west arm" --move 30 --out screening-60m
+
+The table is CSV with a header row: height,period,from,percent[,spreading]
+(H1/3 in m, T1/3 in s, direction the waves come from in degrees true, percentage of
+time; s_max, default 10). Each row is a directional random sea. Writes downtime.csv
+(point,limit,total and one column per 30-degree sector, by its centre 000 ... 330),
+climate-rows.csv (every row at every point) and downtime.png. With --arm and --move
+the head of that arm is first moved as in `harbor sweep`.
 """
 
 
@@ -93,38 +121,46 @@ def _load(path):
 def _select_sea(scenario, name):
     if name is None:
         return None
-    names = [s.name for s in scenario.seas]
-    if name not in names:
-        import difflib
-
-        near = difflib.get_close_matches(name, names, n=1)
-        hint = f" (did you mean '{near[0]}'?)" if near else f" (known: {', '.join(names)})"
-        raise InputError(f"no sea state named '{name}'{hint}", file=scenario.path, key="--sea")
-    return name
+    return scenario.sea(name, key="--sea").name
 
 
 def cmd_check(args):
-    from harbor.solver.assemble import solve
+    from harbor.solver.assemble import grid_coordinates, notices, solve
 
     sc = _load(args.scenario)
     ds = solve(sc, grid=False)
-    warnings = [w for w in ds.attrs["warnings"].split("\n") if w]
     site = sc.site
     print(f"{args.scenario}: valid — {len(sc.layout.arms)} arm(s), {len(sc.layout.lands)} land "
           f"polygon(s), {len(sc.seas)} sea state(s), {len(sc.points)} point(s)")
     print(f"  CRS {site.crs_code}; meridian convergence at the site {site.convergence_deg:+.3f} deg "
           f"(grid bearing = true bearing - convergence); depth {site.depth:g} m")
     if sc.grid is not None:
-        from harbor.solver.assemble import grid_coordinates
-
         gx, gy = grid_coordinates(sc.grid)
         print(f"  grid {gx.size} x {gy.size} points at {sc.grid.spacing:g} m")
     print("methods:")
     for name, method, L in zip(ds.sea.values, ds.sea_method.values, ds.sea_wavelength.values):
         print(f"  - {name}: {method} (L = {L:.1f} m)")
-    _print_warnings(warnings)
+    _print_notices(ds, notices)
     print(f"note: {CAUTION_SHORT}")
     return 0
+
+
+def _print_notices(ds, notices, file=None):
+    """The warnings of a result, grouped: every sea state first, then each one's own."""
+    items = list(dict.fromkeys(notices(ds)))
+    if not items:
+        return
+    file = file or sys.stdout
+    print("warnings:", file=file)
+    for n in items:
+        if n.sea is None:
+            print(f"  - {n.text}", file=file)
+    for s in [str(v) for v in ds.sea.values]:
+        own = [n for n in items if n.sea == s]
+        if own:
+            print(f"  sea state '{s}':", file=file)
+            for n in own:
+                print(f"    - {n.text}", file=file)
 
 
 def _print_warnings(warnings):
@@ -147,86 +183,54 @@ def _parse_at(values):
     return pts
 
 
-def points_table(scenario, at=None, sea=None, method="auto"):
-    """Rows of ``harbor points``: dicts with sea, point, x, y, kd, height[, period_ratio].
-
-    Parameters
-    ----------
-    scenario : harbor.study.scenario.Scenario
-    at : sequence of (name, x, y), optional
-        Points in the scenario's CRS; default the scenario's named points.
-    sea : str, optional
-        One sea state's name.
-    method : str
-        Method override (see :func:`harbor.solve`).
-
-    Returns
-    -------
-    rows : list of dict
-    has_random : bool
-    """
-    from harbor.solver.assemble import solve
-    from harbor.study.scenario import Scenario
-
-    if at:
-        sc = Scenario(path=scenario.path, title=scenario.title, site=scenario.site,
-                      layout=scenario.layout, seas=scenario.seas, points=(), grid=scenario.grid)
-        _check_points(scenario, at)
-    else:
-        sc = scenario
-    ds = solve(sc, sea=sea, points=at, grid=False, method=method)
-    site = scenario.site
-    cx, cy = site.from_work(ds.point_x.values, ds.point_y.values)
-    has_random = bool((ds.sea_kind.values == "random").any())
-    rows = []
-    for i, s in enumerate(ds.sea.values):
-        for j, p in enumerate(ds.point.values):
-            row = dict(sea=str(s), point=str(p), x=float(cx[j]), y=float(cy[j]),
-                       kd=float(ds.point_kd.values[i, j]), height=float(ds.point_height.values[i, j]))
-            if has_random:
-                r = float(ds.point_period_ratio.values[i, j])
-                row["period_ratio"] = None if math.isnan(r) else r
-            rows.append(row)
-    return rows, has_random
-
-
-def _check_points(scenario, at):
-    import numpy as np
-
-    from harbor.geometry.site import lonlat_problem
-
-    site = scenario.site
-    for name, x, y in at:
-        if site.is_lonlat:
-            prob = lonlat_problem(x, y)
-            if prob:
-                raise InputError(prob, file=scenario.path, key="--at")
-        wx, wy = site.to_work(np.array([x]), np.array([y]))
-        if scenario.layout.in_land(wx, wy)[0]:
-            raise InputError(f"point {x:g} {y:g} lies on land", file=scenario.path, key="--at")
+#: CSV of ``harbor points``: the contract columns, then the verdict columns.
+POINTS_COLUMNS = ("sea", "point", "x", "y", "kd", "height")
+VERDICT_COLUMNS = ("limit", "ok", "valid")
 
 
 def cmd_points(args):
+    from harbor.outputs.read import coordinate_digits
+    from harbor.solver.assemble import notices, points_table
+
     sc = _load(args.scenario)
     sea = _select_sea(sc, args.sea)
     at = _parse_at(args.at)
-    rows, has_random = points_table(sc, at=at, sea=sea, method=args.method)
+    rows, ds = points_table(sc, at=at, sea=sea, method=args.method)
+    has_random = bool((ds.sea_kind.values == "random").any())
+    # the warnings and the caution go to stderr, so stdout stays machine-readable
+    _print_notices(ds, notices, file=sys.stderr)
+    print(f"note: {CAUTION_SHORT}", file=sys.stderr)
     if args.json:
-        print(json.dumps({"crs": sc.site.crs_code, "rows": rows, "cautions": caution_text()},
-                         indent=2))
+        items = list(dict.fromkeys(notices(ds)))
+        print(json.dumps({
+            "crs": sc.site.crs_code,
+            "method": {str(s): str(m) for s, m in zip(ds.sea.values, ds.sea_method.values)},
+            "rows": rows,
+            "warnings": [{"code": n.code, "text": n.text, "sea": n.sea, "point": n.point,
+                          "level": n.level} for n in items],
+            "cautions": caution_text()}, indent=2))
         return 0
-    cols = ["sea", "point", "x", "y", "kd", "height"] + (["period_ratio"] if has_random else [])
+    cols = list(POINTS_COLUMNS) + (["period_ratio"] if has_random else []) + list(VERDICT_COLUMNS)
     import csv
 
+    digits = coordinate_digits(ds)
     w = csv.writer(sys.stdout, lineterminator="\n")
     w.writerow(cols)
     for r in rows:
         out = []
         for c in cols:
             v = r.get(c)
-            if isinstance(v, float):
-                out.append(f"{v:.4f}" if c in ("kd", "period_ratio") else
-                           (f"{v:.3f}" if c == "height" else f"{v:.8g}" if sc.site.is_lonlat else f"{v:.2f}"))
+            if isinstance(v, bool):
+                out.append("true" if v else "false")
+            elif isinstance(v, float):
+                if not math.isfinite(v):
+                    out.append("")
+                elif c in ("kd", "period_ratio"):
+                    out.append(f"{v:.4f}")
+                elif c in ("height", "limit"):
+                    out.append(f"{v:.3f}")
+                else:
+                    out.append(f"{v:.{digits}f}")
             else:
                 out.append("" if v is None else v)
         w.writerow(out)
@@ -238,12 +242,12 @@ def _run_map(scenario, out, sea=None, show="kd", method="auto", quiet=False):
     from harbor.solver.assemble import solve
 
     ds = solve(scenario, sea=sea, method=method, progress=_progress_printer(quiet))
-    written = write_all(ds, scenario, out, show=show)
+    written = write_all(ds, out, show=show)
+    # the table ends with the warnings (grouped by sea state) and the cautions: once
     print(point_table(ds))
-    print(f"\nwrote {len(written)} files to {out}:")
+    print(f"wrote {len(written)} files to {out}:")
     for p in written:
         print(f"  {p}")
-    _print_warnings([w for w in ds.attrs["warnings"].split("\n") if w])
     return 0
 
 
@@ -325,8 +329,6 @@ def add_sweep_parser(subparsers):
     argparse.ArgumentParser
         The ``sweep`` parser (its ``func`` default is :func:`cmd_sweep`).
     """
-    from harbor.study.sweep import SWEEP_EXAMPLE
-
     sp = subparsers.add_parser(
         "sweep", help="entrance-width sweep: move one head, heights at the points",
         epilog=SWEEP_EXAMPLE + "\n" + EPILOG_TAIL,
@@ -359,7 +361,8 @@ def cmd_sweep(args):
     int
         0; user mistakes raise :class:`harbor.errors.InputError`.
     """
-    from harbor.study.sweep import find_arm, move_range, sweep, sweep_text, verdict, write_sweep
+    from harbor.outputs.studies import sweep_text, write_sweep
+    from harbor.study.sweep import find_arm, move_range, sweep
 
     sc = _load(args.scenario)
     sea = _select_sea(sc, args.sea)
@@ -369,15 +372,15 @@ def cmd_sweep(args):
                   progress=_progress_printer(args.quiet))
     for m, why in table.attrs["skipped"]:
         print(f"skipped move {m:+g} m: {why}")
-    if table.empty:
+    if table.sizes["move"] == 0:
         raise InputError("every move was skipped; nothing to write", file=sc.path,
                          key="--move")
     written = write_sweep(table, args.out)
-    widths = table.groupby("move")["entrance_width"].first()
+    widths = table["entrance_width"].values
     print(f"{len(widths)} position(s) of the head of '{args.arm}', entrance width "
           f"{widths.min():.1f} to {widths.max():.1f} m")
     print(sweep_text(table))
-    print(verdict(table))
+    print(table.attrs["verdict"])
     print(f"wrote {', '.join(str(p) for p in written)}")
     _print_warnings(table.attrs["warnings"])
     print(f"note: {CAUTION_SHORT}")
@@ -397,8 +400,6 @@ def add_climate_parser(subparsers):
     argparse.ArgumentParser
         The ``climate`` parser (its ``func`` default is :func:`cmd_climate`).
     """
-    from harbor.study.climate import CLIMATE_EXAMPLE
-
     sp = subparsers.add_parser(
         "climate", help="berth downtime (%% of time above the limit) from a wave climate table",
         epilog=CLIMATE_EXAMPLE + "\n" + EPILOG_TAIL,
@@ -434,10 +435,8 @@ def cmd_climate(args):
     int
         0; user mistakes raise :class:`harbor.errors.InputError`.
     """
-    from harbor.geometry.entrance import nearest_heads
-    from harbor.study.climate import (climate_downtime, downtime_text, percent_warning,
-                                      read_climate, write_climate)
-    from harbor.study.sweep import MoveRejected, move_head
+    from harbor.outputs.studies import downtime_text, write_climate
+    from harbor.study.climate import climate_downtime, percent_warning, read_climate
 
     sc = _load(args.scenario)
     if (args.arm is None) != (args.move is None):
@@ -449,29 +448,29 @@ def cmd_climate(args):
     pw = percent_warning(table)
     if pw:
         print(f"warning: {pw}")
+    try:
+        res = climate_downtime(sc, table, method=args.method, workers=args.workers,
+                               progress=_progress_printer(args.quiet), arm=args.arm,
+                               move=args.move)
+    except InputError as e:
+        if e.key in ("arm", "move"):  # name the option the user typed
+            raise InputError(e.problem, file=e.file, key=f"--{e.key}") from None
+        raise
+    width = res.attrs["entrance_width"]
     title = None
     if args.arm is not None:
-        try:
-            sc, width = move_head(sc, args.arm, args.move)
-        except MoveRejected as e:
-            raise InputError(f"cannot move the head of '{args.arm}' by {args.move:g} m: {e}",
-                             file=sc.path, key="--move") from None
         print(f"head of '{args.arm}' moved {args.move:+g} m: entrance width {width:.1f} m")
         title = f"Berth downtime, head of '{args.arm}' moved {args.move:+g} m " \
                 f"(entrance {width:.1f} m)"
-    else:
-        ent = nearest_heads(sc.layout)
-        if ent is not None:
-            print(f"entrance between the nearest heads: {ent.width:.1f} m")
-            title = f"Berth downtime by wave direction (entrance {ent.width:.1f} m)"
-    res = climate_downtime(sc, table, method=args.method, workers=args.workers,
-                           progress=_progress_printer(args.quiet))
+    elif width is not None:
+        print(f"entrance between the nearest heads: {width:.1f} m")
+        title = f"Berth downtime by wave direction (entrance {width:.1f} m)"
     written = write_climate(res, args.out, title=title)
-    print(f"{res.downtime.attrs['table_rows']} climate rows, "
-          f"{res.downtime.attrs['cases']} distinct (period, direction, spreading) cases")
+    print(f"{res.attrs['table_rows']} climate rows, "
+          f"{res.attrs['cases']} distinct (period, direction, spreading) cases")
     print(downtime_text(res))
     print(f"wrote {', '.join(str(p) for p in written)}")
-    _print_warnings([w for w in res.warnings if w != pw])
+    _print_warnings([w for w in res.attrs["warnings"] if w != pw])
     print(f"note: {CAUTION_SHORT}")
     return 0
 

@@ -2,7 +2,8 @@
 and a GeoPackage of isolines, berth points, arms and land, in the scenario CRS.
 
 Everything is read from the result Dataset of :func:`harbor.solve` (its ``x``, ``y``,
-``crs_wkt``, ``scenario_crs``, ``layout`` and the variables); nothing is recomputed.
+``crs_wkt``, ``scenario_crs``, the layout variables ``arm_wkt``, ``land_wkt`` and the
+field and point variables); nothing is recomputed.
 
 Which CRS the rasters use: the result grid is regular in the *work frame* (attribute
 ``crs_wkt``). When the scenario CRS maps that grid onto an axis-aligned regular grid
@@ -25,8 +26,8 @@ import pyproj
 import shapely
 
 from harbor.cautions import CAUTION_SHORT, CAUTIONS
-from harbor.geometry.layout_record import layout_from_record
 from harbor.outputs._atomic import atomic_path, unique_slugs
+from harbor.outputs.read import arm_mask, layout_shapes
 
 #: Value of the raster cells without a value (land, cells an arm crosses).
 NODATA = -9999.0
@@ -116,16 +117,16 @@ def raster_frame(result):
     return _work_crs(result).to_wkt(), work, False
 
 
-def _near_arms(x, y, layout, dist):
+def _near_arms(x, y, arms, dist):
     """(ny, nx) True at nodes within ``dist`` (m) of an arm, and the arms' geometry.
 
     Only the window of the grid around the arms' bounding box is tested, so the cost
     follows the arms' extent rather than the grid's size.
     """
     mask = np.zeros((y.size, x.size), bool)
-    if layout is None or not layout.arms or x.size == 0 or y.size == 0:
+    if not arms or x.size == 0 or y.size == 0:
         return mask, None
-    geom = shapely.MultiLineString([np.asarray(a.line, float) for a in layout.arms])
+    geom = shapely.MultiLineString([np.asarray(a, float) for a in arms])
     shapely.prepare(geom)
     x0, y0, x1, y1 = geom.bounds
     ix = slice(int(np.searchsorted(x, x0 - dist)), int(np.searchsorted(x, x1 + dist,
@@ -144,13 +145,14 @@ def _steps(x, y):
     return hx, hy
 
 
-def _arms_cells(result, layout) -> np.ndarray:
+def _arms_cells(result) -> np.ndarray:
     """(ny, nx) True where an arm crosses the pixel square around a node."""
     x = np.asarray(result["x"].values, float)
     y = np.asarray(result["y"].values, float)
     hx, hy = _steps(x, y)
+    arms = [xy for _, xy in layout_shapes(result)["arms"]]
     # only nodes within the half-diagonal can have their square crossed
-    near, geom = _near_arms(x, y, layout, 0.5 * math.hypot(hx, hy) * 1.001)
+    near, geom = _near_arms(x, y, arms, 0.5 * math.hypot(hx, hy) * 1.001)
     mask = np.zeros_like(near)
     if near.any():
         X, Y = np.meshgrid(x, y)
@@ -177,8 +179,7 @@ def raster_values(result, sea, quantity="kd"):
         (land) and in every cell that an arm crosses.
     """
     z = np.asarray(result[quantity].sel(sea=sea).transpose("y", "x").values, float)
-    bad = ~np.isfinite(z) | _arms_cells(result, layout_from_record(
-        result.attrs.get("layout")))
+    bad = ~np.isfinite(z) | _arms_cells(result)
     out = np.where(bad, NODATA, z).astype(np.float32)
     return out[::-1]
 
@@ -269,15 +270,6 @@ def _contour_parts(result, sea, level, arm_nodes):
     return [np.asarray(a, float) for a in gen.lines(float(level)) if len(a) >= 2]
 
 
-def _near_arm_nodes(result, layout):
-    """Nodes within h/sqrt(2) of an arm: K' jumps across a thin arm and contouring
-    between its two sides would draw every level along it (the rule of the maps)."""
-    x = np.asarray(result["x"].values, float)
-    y = np.asarray(result["y"].values, float)
-    h = max(_steps(x, y))
-    return _near_arms(x, y, layout, h / math.sqrt(2.0) * 1.001)[0]
-
-
 def _xy_scenario(result, xy, to_s):
     xy = np.asarray(xy, float)
     if to_s is None:
@@ -336,8 +328,9 @@ def write_geopackage(result, path, seas=None, levels=GPKG_LEVELS):
     - ``arms`` (LineString): ``name``, ``rooted_start``, ``rooted_end``;
     - ``land`` (Polygon): ``name``.
 
-    Contouring ignores nodes within h/√2 of an arm (h the grid spacing) so that no
-    line runs along an arm; land nodes carry no value. Provenance and cautions are
+    Contouring ignores nodes within h/√2 of an arm (h the grid spacing;
+    :func:`harbor.outputs.read.arm_mask`, the rule of the maps) so that no line runs
+    along an arm; land nodes carry no value. Provenance and cautions are
     dataset metadata.
 
     References
@@ -348,7 +341,7 @@ def write_geopackage(result, path, seas=None, levels=GPKG_LEVELS):
     names = _sea_names(result, seas)
     to_s = _to_scenario(result)
     crs = str(result.attrs.get("scenario_crs", "") or _work_crs(result).to_wkt())
-    layout = layout_from_record(result.attrs.get("layout"))
+    shapes = layout_shapes(result)
     meta = {"TITLE": str(result.attrs.get("title", "")),
             "SCENARIO": str(result.attrs.get("scenario", "")),
             "HARBOR_VERSION": str(result.attrs.get("harbor_version", "")),
@@ -362,7 +355,8 @@ def write_geopackage(result, path, seas=None, levels=GPKG_LEVELS):
     with atomic_path(path) as tmp:
         has_grid = result.sizes.get("x", 0) > 1 and result.sizes.get("y", 0) > 1
         if has_grid:
-            arm_nodes = _near_arm_nodes(result, layout)
+            # the maps' rule: no contouring across the cells an arm straddles
+            arm_nodes = arm_mask(result)
             geoms, f_sea, f_lev, f_h, f_m = [], [], [], [], []
             for s in names:
                 for lv in levels:
@@ -419,20 +413,24 @@ def write_geopackage(result, path, seas=None, levels=GPKG_LEVELS):
             _write_layer(tmp, "points", geoms, {k: fields[k] for k in order}, "Point",
                          crs, None if written else meta)
             written = True
-        if layout is not None and layout.arms:
-            geoms = [shapely.LineString(_xy_scenario(result, a.line, to_s))
-                     for a in layout.arms]
+        if shapes["arms"]:
+            n = len(shapes["arms"])
+            geoms = [shapely.LineString(_xy_scenario(result, xy, to_s))
+                     for _, xy in shapes["arms"]]
+            rs = np.asarray(result["arm_rooted_start"].values, bool) \
+                if "arm_rooted_start" in result else np.zeros(n, bool)
+            re_ = np.asarray(result["arm_rooted_end"].values, bool) \
+                if "arm_rooted_end" in result else np.zeros(n, bool)
             _write_layer(tmp, "arms", geoms, {
-                "name": np.array([a.name for a in layout.arms], dtype=object),
-                "rooted_start": np.array([a.rooted_start for a in layout.arms], bool),
-                "rooted_end": np.array([a.rooted_end for a in layout.arms], bool)},
+                "name": np.array([nm for nm, _ in shapes["arms"]], dtype=object),
+                "rooted_start": rs, "rooted_end": re_},
                 "LineString", crs, None if written else meta)
             written = True
-        if layout is not None and layout.lands:
+        if shapes["lands"]:
             geoms = [shapely.Polygon(_xy_scenario(result, np.asarray(
-                ld.outline.exterior.coords, float), to_s)) for ld in layout.lands]
+                poly.exterior.coords, float), to_s)) for _, poly in shapes["lands"]]
             _write_layer(tmp, "land", geoms, {
-                "name": np.array([ld.name for ld in layout.lands], dtype=object)},
+                "name": np.array([nm for nm, _ in shapes["lands"]], dtype=object)},
                 "Polygon", crs, None if written else meta)
             written = True
         if not written:
