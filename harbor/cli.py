@@ -504,8 +504,8 @@ def add_import_parser(subparsers):
     argparse.ArgumentParser
         The ``import`` parser (its ``func`` default is :func:`cmd_import`).
     """
-    from harbor.study.layout_files import DEFAULT_CHORD
-
+    # the default is harbor.study.layout_files.DEFAULT_CHORD, written out here so that
+    # building the parser imports nothing heavy (start-up time)
     sp = subparsers.add_parser(
         "import", help="write a scenario from a GIS layer or a DXF drawing",
         epilog=IMPORT_EXAMPLE + "\n" + EPILOG_TAIL,
@@ -522,8 +522,8 @@ def add_import_parser(subparsers):
                     help="attribute holding reflection coefficients (0-1) of arms and land")
     sp.add_argument("--crs", metavar="CRS",
                     help="CRS of the coordinates when the file has none (e.g. EPSG:32630)")
-    sp.add_argument("--chord", type=float, default=DEFAULT_CHORD, metavar="M",
-                    help=f"chord tolerance for DXF curves, m (default {DEFAULT_CHORD:g})")
+    sp.add_argument("--chord", type=float, default=None, metavar="M",
+                    help="chord tolerance for DXF curves, m (default 0.1)")
     sp.add_argument("--depth", type=float, metavar="M",
                     help="water depth, m (default: a marked placeholder)")
     sp.add_argument("--title", help="scenario title")
@@ -548,14 +548,15 @@ def cmd_import(args):
     int
         0; user mistakes raise :class:`harbor.errors.InputError`.
     """
-    from harbor.study.layout_files import import_layout
+    from harbor.study.layout_files import DEFAULT_CHORD, import_layout
 
     if args.arms is None and args.land is None and args.points is None:
         raise InputError("give at least one of --arms, --land, --points", key="--arms")
     out, sc = import_layout(args.file, args.out, arms=args.arms, land=args.land,
                             points=args.points, name_field=args.name_field,
                             reflection_field=args.reflection_field,
-                            limit_field=args.limit_field, crs=args.crs, chord=args.chord,
+                            limit_field=args.limit_field, crs=args.crs,
+                            chord=DEFAULT_CHORD if args.chord is None else args.chord,
                             depth=args.depth, title=args.title, reference=args.reference,
                             force=args.force)
     print(f"wrote {out}: {len(sc.layout.arms)} arm(s), {len(sc.layout.lands)} land "
