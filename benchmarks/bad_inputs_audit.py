@@ -333,6 +333,27 @@ def audit_inproc(tmp):
                 else ["map", "s.toml", "--out", out, "--quiet"])
         res = run_inproc(argv, d)
         record("CLI arguments, special files", name, res, classify(res, "refuse", code))
+    for name, kind in special.items():          # harbor import of a layout file
+        if "valid" in name or kind in ("bom", "latin"):
+            continue
+        d = Path(tempfile.mkdtemp(dir=tmp))
+        p = d / "layout.gpkg"
+        if kind == "fifo":
+            os.mkfifo(p)
+        elif kind == "/dev/zero":
+            os.symlink("/dev/zero", p)
+        elif kind == "loop":
+            os.symlink(p, p)
+        elif kind == "dir":
+            p.mkdir()
+        elif kind == "huge":
+            p = d / "layout.geojson"
+            with open(p, "wb") as fh:
+                fh.truncate(17 * 2**20)     # within the 1 GiB limit: GDAL must refuse it
+        before = _snapshot(d)
+        res = run_inproc(["import", str(p), "--arms", "arms", "--out", "new.toml"], d)
+        res.written = sorted(_snapshot(d) - before)
+        record("CLI arguments, special files", f"import {name}", res, classify(res, "refuse"))
     for name, argv, expect in other_cli_cases():
         d = Path(tempfile.mkdtemp(dir=tmp))
         (d / "s.toml").write_text(BASE)

@@ -645,7 +645,7 @@ def main(argv=None):
         out = getattr(args, "out", None)
         if out is None:
             return int(args.func(args) or 0)
-        with claim_output(out, "file" if args.command == "diagram" else "dir"):
+        with claim_output(out, "file" if args.command in ("diagram", "import") else "dir"):
             return int(args.func(args) or 0)
     except InputError as e:
         print(f"harbor: {e.line()}", file=sys.stderr)

@@ -189,6 +189,25 @@ def test_special_climate_tables(kind, word, tmp_path, capsys):
     assert not (tmp_path / "out").exists()
 
 
+@pytest.mark.parametrize("kind,word", SPECIAL[:4], ids=[k for k, _ in SPECIAL[:4]])
+def test_special_layout_files(kind, word, tmp_path, capsys):
+    p = _special(kind, tmp_path)
+    if kind == "devzero":
+        p = tmp_path / "zero.gpkg"
+        os.symlink("/dev/zero", p)
+    got, _, err = run(["import", p, "--arms", "arms", "--out", tmp_path / "new.toml"],
+                      capsys)
+    assert_refused(got, err, 2, word)
+    assert not (tmp_path / "new.toml").exists()
+
+
+def test_import_out_folder_refused(tmp_path, capsys):
+    (tmp_path / "new.toml").mkdir()
+    got, _, err = run(["import", tmp_path / "x.gpkg", "--arms", "arms", "--out",
+                       tmp_path / "new.toml"], capsys)
+    assert_refused(got, err, 2, "folder")
+
+
 def test_bom_accepted(tmp_path, capsys):
     f = tmp_path / "bom.toml"
     f.write_bytes(b"\xef\xbb\xbf" + BASE.encode())
