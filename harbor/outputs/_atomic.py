@@ -128,16 +128,20 @@ def staging_dir(out_dir):
     out = Path(out_dir).resolve()
     parent = out.parent
     parent.mkdir(parents=True, exist_ok=True)
-    stage = Path(tempfile.mkdtemp(prefix=f".{out.name}.staging-", dir=parent))
     names: list[str] = []
+    stage = None
     try:
+        # held: a signal between creating the folder and knowing its name would leak it
+        with _signals_held():
+            stage = Path(tempfile.mkdtemp(prefix=f".{out.name}.staging-", dir=parent))
         yield stage, names
         with _signals_held():
             out.mkdir(parents=True, exist_ok=True)
             for n in names:
                 os.replace(stage / n, out / n)
     finally:
-        shutil.rmtree(stage, ignore_errors=True)
+        if stage is not None:
+            shutil.rmtree(stage, ignore_errors=True)
 
 
 @contextlib.contextmanager
@@ -289,8 +293,6 @@ def claim_output(path, kind: str = "dir"):
     """
     import hashlib
 
-    from harbor.errors import MachineError
-
     absolute = check_output(path, kind)
     try:
         import fcntl
@@ -300,6 +302,23 @@ def claim_output(path, kind: str = "dir"):
     anc = _existing_ancestor(absolute.parent)
     tag = hashlib.sha1(os.path.realpath(absolute).encode()).hexdigest()[:12]
     lock = anc / f".harbor-lock-{tag}"
+    fd = None
+    try:
+        # held: a signal between creating the lock file and the try below would leak it
+        with _signals_held():
+            fd = _take_lock(lock, fcntl, path)
+        yield absolute
+    finally:
+        if fd is not None:
+            with contextlib.suppress(OSError):
+                os.unlink(lock)
+            os.close(fd)
+
+
+def _take_lock(lock: Path, fcntl, shown):
+    """Open and exclusively lock ``lock``; the descriptor, or MachineError when held."""
+    from harbor.errors import MachineError
+
     while True:
         fd = os.open(lock, os.O_RDWR | os.O_CREAT, 0o644)
         try:
@@ -307,18 +326,12 @@ def claim_output(path, kind: str = "dir"):
         except OSError:
             os.close(fd)
             raise MachineError("another harbor run is writing to this location; wait for "
-                               "it to finish or choose another --out", file=str(path)) from None
+                               "it to finish or choose another --out", file=str(shown)) from None
         # the previous holder may have removed the file between our open and our lock
         try:
             same = os.path.samestat(os.fstat(fd), os.stat(lock))
         except FileNotFoundError:
             same = False
         if same:
-            break
-        os.close(fd)
-    try:
-        yield absolute
-    finally:
-        with contextlib.suppress(OSError):
-            os.unlink(lock)
+            return fd
         os.close(fd)
