@@ -620,3 +620,15 @@ def test_a_flagged_point_is_never_a_plain_ok(case):
     rows = list(csv.DictReader(io.StringIO(export.points_csv_text(r))))
     assert {row["valid"] for row in rows if row["point"] == name} == {"false"}
     assert {row["valid"] for row in rows if row["point"] != name} == {"true"}
+
+
+def test_outputs_need_nothing_but_the_result_file(run, tmp_path):
+    # grid.nc carries the layout, CRS, points and warnings: a map and the point table
+    # are drawn from it alone (no scenario object anywhere)
+    sc, res, out, _ = run
+    with xr.open_dataset(out / "grid.nc") as nc:
+        assert nc["arm_wkt"].sizes["arm"] == len(sc.layout.arms)
+        assert nc["crs"].attrs["crs_wkt"] == res["crs"].attrs["crs_wkt"]
+        p = maps.sheltering_map(nc, str(nc.sea.values[0]), tmp_path / "again.png", dpi=40)
+        assert p.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+        assert export.point_table(nc) == export.point_table(res)
