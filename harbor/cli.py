@@ -23,8 +23,10 @@ MAP_EXAMPLE = """example:
   harbor map scenarios/demo.toml --out maps
   harbor map scenarios/demo.toml --sea "storm N" --show height --out maps
 
-Writes, for every sea state: map-<sea>.png, sheet-<sea>.pdf, isolines-<sea>.geojson;
-and grid.nc (NetCDF-CF) and points.csv. Nothing is written if any part fails.
+Writes, for every sea state: map-<sea>.png, sheet-<sea>.pdf, isolines-<sea>.geojson,
+kd-<sea>.tif and height-<sea>.tif (Cloud-Optimised GeoTIFF); and grid.nc (NetCDF-CF),
+points.csv and harbor.gpkg (isolines, points, arms, land in the scenario CRS). Nothing
+is written if any part fails.
 """
 
 POINTS_EXAMPLE = """example:
@@ -473,6 +475,97 @@ def cmd_climate(args):
     return 0
 
 
+IMPORT_EXAMPLE = """examples:
+  harbor import layout.gpkg --arms breakwaters --land shore --points berths \\
+      --limit-field limit --depth 9 --out harbour.toml
+  harbor import drawing.dxf --crs EPSG:32630 --arms BW --land COAST --points BERTHS \\
+      --chord 0.05 --out harbour.toml
+  harbor import layout.geojson --arms kind=arm --land kind=land --points kind=berth \\
+      --reference --out harbour.toml
+
+A selector is LAYER, LAYER:FIELD=VALUE or FIELD=VALUE. GIS files (GeoPackage, Shapefile,
+GeoJSON): layers and attributes. DXF: drawing layers (wildcards * and ?); names, limits
+and reflection coefficients from block attributes (points) or extended data of
+application HARBOR ("name=west arm") on the linework. The scenario written passes
+`harbor check`; its sea state and grid are placeholders to replace.
+"""
+
+
+def add_import_parser(subparsers):
+    """Add ``harbor import`` to the command's subparsers.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        From ``ArgumentParser.add_subparsers``.
+
+    Returns
+    -------
+    argparse.ArgumentParser
+        The ``import`` parser (its ``func`` default is :func:`cmd_import`).
+    """
+    # the default is harbor.study.layout_files.DEFAULT_CHORD, written out here so that
+    # building the parser imports nothing heavy (start-up time)
+    sp = subparsers.add_parser(
+        "import", help="write a scenario from a GIS layer or a DXF drawing",
+        epilog=IMPORT_EXAMPLE + "\n" + EPILOG_TAIL,
+        formatter_class=argparse.RawDescriptionHelpFormatter)
+    sp.add_argument("file", help="GeoPackage, Shapefile, GeoJSON or DXF file")
+    sp.add_argument("--arms", metavar="SELECTOR", help="where the breakwater arms are")
+    sp.add_argument("--land", metavar="SELECTOR", help="where the land polygons are")
+    sp.add_argument("--points", metavar="SELECTOR", help="where the points of interest are")
+    sp.add_argument("--name-field", default="name", metavar="FIELD",
+                    help="attribute holding names (default name; DXF: also 'layer')")
+    sp.add_argument("--limit-field", metavar="FIELD",
+                    help="attribute holding the points' allowable wave height (m)")
+    sp.add_argument("--reflection-field", metavar="FIELD",
+                    help="attribute holding reflection coefficients (0-1) of arms and land")
+    sp.add_argument("--crs", metavar="CRS",
+                    help="CRS of the coordinates when the file has none (e.g. EPSG:32630)")
+    sp.add_argument("--chord", type=float, default=None, metavar="M",
+                    help="chord tolerance for DXF curves, m (default 0.1)")
+    sp.add_argument("--depth", type=float, metavar="M",
+                    help="water depth, m (default: a marked placeholder)")
+    sp.add_argument("--title", help="scenario title")
+    sp.add_argument("--reference", action="store_true",
+                    help="refer to the file instead of copying its vertices")
+    sp.add_argument("--out", required=True, metavar="FILE", help="scenario file to write")
+    sp.add_argument("--force", action="store_true", help="overwrite --out if it exists")
+    sp.set_defaults(func=cmd_import)
+    return sp
+
+
+def cmd_import(args):
+    """Run ``harbor import``: call :func:`harbor.study.layout_files.import_layout`.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        From the parser of :func:`add_import_parser`.
+
+    Returns
+    -------
+    int
+        0; user mistakes raise :class:`harbor.errors.InputError`.
+    """
+    from harbor.study.layout_files import DEFAULT_CHORD, import_layout
+
+    if args.arms is None and args.land is None and args.points is None:
+        raise InputError("give at least one of --arms, --land, --points", key="--arms")
+    out, sc = import_layout(args.file, args.out, arms=args.arms, land=args.land,
+                            points=args.points, name_field=args.name_field,
+                            reflection_field=args.reflection_field,
+                            limit_field=args.limit_field, crs=args.crs,
+                            chord=DEFAULT_CHORD if args.chord is None else args.chord,
+                            depth=args.depth, title=args.title, reference=args.reference,
+                            force=args.force)
+    print(f"wrote {out}: {len(sc.layout.arms)} arm(s), {len(sc.layout.lands)} land "
+          f"polygon(s), {len(sc.points)} point(s) in {sc.site.crs_code}")
+    print("the sea state, the grid spacing and (unless --depth) the depth are "
+          "PLACEHOLDERS: edit them, then run 'harbor check'")
+    return 0
+
+
 def build_parser():
     p = _Parser(prog="harbor",
                 description="Wave diffraction screening for harbour layouts: sheltering maps, berth "
@@ -486,7 +579,7 @@ def build_parser():
 
     method_opt = _add_method_option
 
-    sp = sub.add_parser("map", help="sheltering maps, PDF sheets, GeoJSON, NetCDF and CSV for every sea state",
+    sp = sub.add_parser("map", help="sheltering maps, PDF sheets, GeoJSON, NetCDF, CSV, GeoTIFF and GeoPackage for every sea state",
                         epilog=MAP_EXAMPLE + "\n" + EPILOG_TAIL, formatter_class=fmt)
     sp.add_argument("scenario", help="scenario file (TOML)")
     sp.add_argument("--out", default="harbor-out", help="output folder (default harbor-out)")
@@ -536,6 +629,7 @@ def build_parser():
 
     add_sweep_parser(sub)
     add_climate_parser(sub)
+    add_import_parser(sub)
     return p
 
 

@@ -164,8 +164,9 @@ def test_map_outputs_agree_with_points(small, tmp_path, capsys):
     code, out, err = run(["map", str(small), "--out", str(out_dir), "--quiet"], capsys)
     assert code == 0, err
     names = sorted(p.name for p in out_dir.iterdir())
-    assert names == ["grid.nc", "isolines-swell.geojson", "map-swell.png", "points.csv",
-                     "report.pdf", "sheet-swell.pdf"]
+    assert names == ["grid.nc", "harbor.gpkg", "height-swell.tif", "isolines-swell.geojson",
+                     "kd-swell.tif", "map-swell.png", "points.csv", "report.pdf",
+                     "sheet-swell.pdf"]
     # the warning block is printed once (it ends the berth table)
     assert out.count("reflection from quays, shores") == 1
     ds = xr.open_dataset(out_dir / "grid.nc")

@@ -157,7 +157,10 @@ def test_write_all_names_and_files(run):
     names = sorted(p.name for p in written)
     assert names == sorted(["map-storm-sw.png", "sheet-storm-sw.pdf", "isolines-storm-sw.geojson",
                             "map-swell-n.png", "sheet-swell-n.pdf", "isolines-swell-n.geojson",
-                            "grid.nc", "points.csv", "report.pdf"])
+                            "grid.nc", "points.csv", "report.pdf",
+                            # GIS files (harbor.outputs.gis)
+                            "kd-storm-sw.tif", "height-storm-sw.tif", "kd-swell-n.tif",
+                            "height-swell-n.tif", "harbor.gpkg"])
     assert sorted(p.name for p in out.iterdir()) == names
     # No staging directory or temporary file left beside or inside the output.
     assert [p.name for p in out.parent.iterdir()] == ["out"]

@@ -520,7 +520,9 @@ def write_all(result, out_dir, seas=None, show="kd"):
     list of pathlib.Path
         The files written: per sea state ``map-<sea>.png``, ``sheet-<sea>.pdf``,
         ``isolines-<sea>.geojson`` (``<sea>`` the slugged name), then ``grid.nc``,
-        ``points.csv`` and ``report.pdf`` (the combined report for the client).
+        ``points.csv`` and ``report.pdf`` (the combined report for the client), then
+        the GIS files of :func:`harbor.outputs.gis.write_gis` (``kd-<sea>.tif``,
+        ``height-<sea>.tif``, ``harbor.gpkg``).
 
     Notes
     -----
@@ -556,5 +558,7 @@ def write_all(result, out_dir, seas=None, show="kd"):
         staged.append("points.csv")
         pdf_report(result, stage / "report.pdf", seas=names, show=show, sheets=drawn)
         staged.append("report.pdf")
+        from harbor.outputs.gis import write_gis
+        staged += write_gis(result, stage, seas=names)
     out = Path(out_dir).resolve()
     return [out / n for n in staged]

@@ -355,6 +355,9 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
     title = r.string(data, "title", None, required=False,
                      default=Path(path).stem if path else "untitled")
     crs_code, depth, g, lonlat = _read_site(r, data)
+    # tables that name a layout file (GIS layer, DXF drawing) become plain tables here
+    from harbor.study.layout_files import expand_references
+    data = expand_references(data, path, crs_code, _KEYS)
     raw_arms, raw_lands, seas, raw_points = _read_tables(r, data)
     spacing, raw_bounds = _read_grid_table(r, data)
     _check_coordinates(r, crs_code, lonlat, raw_arms, raw_lands, raw_points, raw_bounds)
