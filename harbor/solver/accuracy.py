@@ -18,7 +18,6 @@ import shapely
 
 from harbor.cautions import Notice
 from harbor.errors import InputError
-from harbor.solver.field import solve_field
 from harbor.solver.layout import BEND_DIFFRACTION_DEG, edge_on_arms
 
 __all__ = ["accuracy_warnings", "field_method_solve", "field_method_notes",
@@ -535,6 +534,10 @@ def field_method_solve(scenario, sea, px, py, points_per_wavelength=10.0):
     # significant digits for the triangulation at a mesh edge of a few metres. Moving the
     # origin multiplies the whole solution by the incident phase there.
     o = np.array([0.5 * (region[0] + region[2]), 0.5 * (region[1] + region[3])])
+    # imported here: the finite-element stack is only needed by --method field, and every
+    # solve (harbor check included) imports this module for its validity rules
+    from harbor.solver.field import solve_field
+
     sol = solve_field([b - o for b in barriers], L, alpha,
                       (region[0] - o[0], region[1] - o[1], region[2] - o[0], region[3] - o[1]),
                       points_per_wavelength=points_per_wavelength)
