@@ -199,7 +199,11 @@ class Space:
             G.setdiag(0)
             G.eliminate_zeros()
             # METIS: row i of the permuted matrix is row perm[i] of the original
-            perm, _ = pymetis.nested_dissection(xadj=G.indptr, adjncy=G.indices)
+            if hasattr(pymetis, "CSRAdjacency"):
+                graph = {"adjacency": pymetis.CSRAdjacency(G.indptr, G.indices)}
+            else:  # pragma: no cover - older pymetis
+                graph = {"xadj": G.indptr, "adjncy": G.indices}
+            perm, _ = pymetis.nested_dissection(**graph)
             self._perm = np.asarray(perm)
         return None if self._perm is False else self._perm
 

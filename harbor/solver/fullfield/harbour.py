@@ -361,7 +361,9 @@ class HarbourModel:
         def blend(x, y):
             dx = np.maximum(np.maximum(r[0] - x, x - r[2]), 0.0)
             dy = np.maximum(np.maximum(r[1] - y, y - r[3]), 0.0)
-            return np.clip(1.0 - np.maximum(dx, dy) / max(m, 1e-9), 0.0, 1.0)
+            # the bathymetry as given over the wanted area and half the margin, then a
+            # linear ramp to the exterior depth on the interface
+            return np.clip(2.0 - 2.0 * np.maximum(dx, dy) / max(m, 1e-9), 0.0, 1.0)
 
         def depth_used(x, y):
             x = np.asarray(x, float)
@@ -399,9 +401,15 @@ class HarbourModel:
                 dry &= ~shapely.intersects_xy(land, X, Y)
             if np.any(dry):
                 iy, ix = np.nonzero(dry)
-                cells = shapely.box(X[iy, ix] - step / 2, Y[iy, ix] - step / 2,
-                                    X[iy, ix] + step / 2, Y[iy, ix] + step / 2)
-                dpoly = shapely.union_all(cells).simplify(0.25 * step)
+                # cell edges shared exactly, so that the union merges neighbouring cells
+                xe = np.append(xs - step / 2, xs[-1] + step / 2)
+                ye = np.append(ys - step / 2, ys[-1] + step / 2)
+                cells = shapely.box(xe[ix], ye[iy], xe[ix + 1], ye[iy + 1])
+                dpoly = shapely.union_all(cells)
+                # round the staircase (no slivers, no corners touching at one node)
+                dpoly = dpoly.buffer(0.5 * step, join_style="round").buffer(
+                    -0.5 * step, join_style="round").simplify(0.2 * step)
+                dpoly = shapely.make_valid(dpoly)
                 holes.append(dpoly)
                 self._note("field-dry", f"{dry.sum() * step * step:.0f} m2 of the model area "
                            f"is shallower than {self.min_depth:g} m and is treated as dry "
@@ -591,6 +599,9 @@ class HarbourModel:
                 continue
             nrm = c.normal.copy()
             sgn = 1.0
+            if abs(d @ nrm) < 1e-9:
+                B[:, j] = inc  # waves along the coast: no reflected wave
+                continue
             if d @ nrm > 0:
                 if c.land_backed:
                     reach[j] = False  # waves travelling from the land: none arrive

@@ -51,12 +51,34 @@ class WaterMesh:
 
     def locate(self, x, y):
         """Index of the triangle containing each point (-1 outside the water)."""
+        x = np.asarray(x, float).ravel()
+        y = np.asarray(y, float).ravel()
+        out = np.full(x.size, -1, np.int64)
+        if x.size == 0:
+            return out
+        V, T = self.vertices, self.vtriangles
         if self._finder is None:
+            self._finder = cKDTree(V[T].mean(axis=1))
+        k = min(12, len(T))
+        _, cand = self._finder.query(np.column_stack([x, y]), k)
+        cand = cand.reshape(x.size, -1)
+        a, b, c = V[T[cand, 0]], V[T[cand, 1]], V[T[cand, 2]]
+        det = ((b[..., 0] - a[..., 0]) * (c[..., 1] - a[..., 1])
+               - (b[..., 1] - a[..., 1]) * (c[..., 0] - a[..., 0]))
+        px, py = x[:, None] - a[..., 0], y[:, None] - a[..., 1]
+        l1 = (px * (c[..., 1] - a[..., 1]) - py * (c[..., 0] - a[..., 0])) / det
+        l2 = (py * (b[..., 0] - a[..., 0]) - px * (b[..., 1] - a[..., 1])) / det
+        tol = 1e-10
+        ok = (l1 >= -tol) & (l2 >= -tol) & (1 - l1 - l2 >= -tol)
+        hit = ok.any(axis=1)
+        out[hit] = cand[hit, np.argmax(ok[hit], axis=1)]
+        miss = np.flatnonzero(~hit)
+        if miss.size:  # rare (large graded triangles): exact search for those points
             from matplotlib.tri import Triangulation
 
-            tri = Triangulation(self.vertices[:, 0], self.vertices[:, 1], self.vtriangles)
-            self._finder = tri.get_trifinder()
-        return np.asarray(self._finder(np.asarray(x, float), np.asarray(y, float)))
+            f = Triangulation(V[:, 0], V[:, 1], T).get_trifinder()
+            out[miss] = np.asarray(f(x[miss], y[miss]))
+        return out
 
 
 def _densify(coords, size):
