@@ -152,19 +152,28 @@ def build(water, slits, size, max_rounds=6):
     scale = max(bounds[2] - bounds[0], bounds[3] - bounds[1])
     P, E, M = [], [], []
     base = 0
-    for ring in _rings(water):
-        q = _densify(ring, size)[:-1]  # closed: last == first
-        n = len(q)
-        P.append(q)
-        E.append(np.column_stack([base + np.arange(n), base + (np.arange(n) + 1) % n]))
-        M.append(np.ones(n, int))
-        base += n
-    for s in slits:
-        q = _densify(np.asarray(s, float), size)
+    rings = [shapely.LineString(r) for r in _rings(water)]
+    slit_lines = [shapely.LineString(np.asarray(q, float)) for q in slits]
+    # node everything where it crosses or touches (an arm rooted on a shore ends on the
+    # shore's edge), so that the mesher sees no T-junctions
+    noded = shapely.get_parts(shapely.node(shapely.MultiLineString(
+        [np.asarray(g.coords) for g in rings + slit_lines])))
+    ring_ml = shapely.MultiLineString([np.asarray(g.coords) for g in rings])
+    slit_ml = shapely.MultiLineString([np.asarray(g.coords) for g in slit_lines]) \
+        if slit_lines else None
+    tol = 1e-9 * scale
+    for g in noded:
+        c = np.asarray(g.coords)
+        if len(c) < 2:
+            continue
+        mid = shapely.Point(0.5 * (c[0] + c[1]))
+        is_slit = (slit_ml is not None and shapely.distance(mid, slit_ml) < tol
+                   and shapely.distance(mid, ring_ml) > tol)
+        q = _densify(c, size)
         n = len(q)
         P.append(q)
         E.append(np.column_stack([base + np.arange(n - 1), base + np.arange(1, n)]))
-        M.append(np.full(n - 1, 2))
+        M.append(np.full(n - 1, 2 if is_slit else 1))
         base += n
     P = np.concatenate(P)
     E = np.concatenate(E)
