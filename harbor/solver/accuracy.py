@@ -16,6 +16,7 @@ from __future__ import annotations
 import numpy as np
 import shapely
 
+from harbor.cautions import Notice
 from harbor.errors import InputError
 from harbor.solver.field import solve_field
 from harbor.solver.layout import BEND_DIFFRACTION_DEG, edge_on_arms
@@ -140,7 +141,7 @@ def accuracy_warnings(layout, wavelength, directions=()):
 
     Returns
     -------
-    list of str
+    list of harbor.cautions.Notice
         One sentence per finding, naming the arm(s) and the error measured for that
         class of layout against the full-field solution; empty when the layout is in
         the measured good region.
@@ -199,11 +200,11 @@ def accuracy_warnings(layout, wavelength, directions=()):
     for arm, nf in zip(arms, n_free):
         length = _arm_length(arm)
         if nf == 2 and length < SHORT_ARM_WAVELENGTHS * L:
-            out.append(
-                f"arm '{arm.name}' is a detached breakwater {length:.0f} m long "
+            out.append(Notice(
+                "detached-short", f"arm '{arm.name}' is a detached breakwater {length:.0f} m long "
                 f"({length / L:.1f} L, under {SHORT_ARM_WAVELENGTHS:g} L): the general method "
                 f"was measured off by more than 0.05 in K' over 16-42 % of the lee of a "
-                f"1 L breakwater (median 0.02-0.04, up to 0.3 beside the heads; {ref})")
+                f"1 L breakwater (median 0.02-0.04, up to 0.3 beside the heads; {ref})"))
 
     # pairs of heads: overlapping heads and narrow misaligned entrances
     pairs = _entrance_pairs(layout, L)
@@ -213,23 +214,23 @@ def accuracy_warnings(layout, wavelength, directions=()):
         if overlap:
             gap = min(abs(_cross(hj - hi, vi)), abs(_cross(hi - hj, vj)))
             if gap <= OVERLAP_CHANNEL_WAVELENGTHS * L * (1 + 1e-9):
-                out.append(
-                    f"the heads of {names} overlap, with a channel {gap:.0f} m "
+                out.append(Notice(
+                    "overlapping-heads", f"the heads of {names} overlap, with a channel {gap:.0f} m "
                     f"({gap / L:.1f} L) wide between them: the general method misses the "
                     f"waves trapped between the arms and was measured off by more than 0.05 "
                     f"in K' over 17-92 % of such a lee (median 0.01-0.39, up to 0.6-1.9; "
-                    f"{ref})")
+                    f"{ref})"))
             continue
         axis = (hj - hi) / width
         mis = max(np.degrees(np.arccos(np.clip(-np.dot(vi, axis), -1, 1))),
                   np.degrees(np.arccos(np.clip(np.dot(vj, axis), -1, 1))))
         if (mis >= MISALIGNED_DEG - _ANGLE_SLACK
                 and width <= MISALIGNED_NARROW_WAVELENGTHS * L * (1 + 1e-9)):
-            out.append(
-                f"the entrance between {names} is {width:.0f} m ({width / L:.1f} L) wide "
+            out.append(Notice(
+                "misaligned-entrance", f"the entrance between {names} is {width:.0f} m ({width / L:.1f} L) wide "
                 f"with heads misaligned by {mis:.0f} deg: the general method was measured "
                 f"off by more than 0.05 in K' over 22-34 % of such a lee even for waves "
-                f"near normal to it (median 0.02-0.035, up to 0.2; {ref})")
+                f"near normal to it (median 0.02-0.035, up to 0.2; {ref})"))
 
     # bends near a free head
     for arm in arms:
@@ -253,12 +254,12 @@ def accuracy_warnings(layout, wavelength, directions=()):
                 how = ("with half-plane solutions" if turn >= BEND_DIFFRACTION_DEG
                        else "as straight")
                 share = "36-82 %" if turn >= BEND_DIFFRACTION_DEG else "10-40 %"
-                out.append(
-                    f"arm '{arm.name}' bends by {turn:.0f} deg {min(along):.0f} m "
+                out.append(Notice(
+                    "bend-near-head", f"arm '{arm.name}' bends by {turn:.0f} deg {min(along):.0f} m "
                     f"({min(along) / L:.1f} L) from its head: the general method treats "
                     f"the bend {how} and was measured off by more than 0.05 in K' over "
                     f"{share} of the lee of such a dog-leg (up to 0.3-0.6 near the bend; "
-                    f"{ref})")
+                    f"{ref})"))
 
     # direction-dependent rules
     partners = set()
@@ -275,23 +276,23 @@ def accuracy_warnings(layout, wavelength, directions=()):
             graze = [k for k in range(len(seg))
                      if _line_angle_deg(_unit(seg[k]), d) < GRAZING_DEG]
             if graze:
-                out.append(
-                    f"waves of {label} run within {GRAZING_DEG:g} deg of parallel to arm "
+                out.append(Notice(
+                    "grazing", f"waves of {label} run within {GRAZING_DEG:g} deg of parallel to arm "
                     f"'{arm.name}': at such grazing incidence the general method was "
                     f"measured up to 0.6-2.0 off in K' (mostly too high) beyond the head "
-                    f"({ref})")
+                    f"({ref})"))
                 continue
             short = nf == 2 and _arm_length(arm) < OBLIQUE_ARM_WAVELENGTHS * L
             for tip, inward in arm.heads():
                 works = short or (i, tuple(tip)) in partners
                 ang = _line_angle_deg(inward, d)
                 if works and ang <= OBLIQUE_DEG + _ANGLE_SLACK:
-                    out.append(
-                        f"waves of {label} run {ang:.0f} deg to the line of arm "
+                    out.append(Notice(
+                        "oblique-head", f"waves of {label} run {ang:.0f} deg to the line of arm "
                         f"'{arm.name}' at its head, whose diffraction works with another "
                         f"head's: within {OBLIQUE_DEG:g} deg the general method was "
                         f"measured off by more than 0.05 in K' over 19-76 % of the lee "
-                        f"(median 0.03-0.07, up to 0.15-0.4; {ref})")
+                        f"(median 0.03-0.07, up to 0.15-0.4; {ref})"))
                     break
     return out
 
@@ -433,15 +434,15 @@ def field_method_notes(scenario, sea=None, points_per_wavelength=10.0):
     _, loose = _field_barriers(scenario.layout, L / float(points_per_wavelength))
     out = []
     if scenario.layout.lands:
-        out.append("field method: land edges are fully reflecting walls (the screening "
+        out.append(Notice("field-land-walls", "field method: land edges are fully reflecting walls (the screening "
                    "methods neglect reflection from land), so a closed basin can show "
                    "standing waves the screening maps do not; land and rooted arms that "
                    "run out of the solved area towards the waves act as if cut off at "
-                   "its edge")
+                   "its edge", level="note"))
     for name in loose:
-        out.append(f"field method: arm '{name}' has an end declared rooted but on neither "
+        out.append(Notice("field-loose-end", f"field method: arm '{name}' has an end declared rooted but on neither "
                    f"modelled land nor another arm; the field method lets that end "
-                   f"diffract as a free head")
+                   f"diffract as a free head"))
     return out
 
 

@@ -22,6 +22,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from harbor.cautions import Notice
 from harbor.geometry.entrance import basin_mask, nearest_heads
 from harbor.geometry.layout import Layout
 from harbor.geometry.visibility import (diffracting_edges, layout_segments, ray_blocked,
@@ -429,7 +430,7 @@ def layout_warnings(layout, wavelength, point_xy=()):
 
     Returns
     -------
-    list of str
+    list of harbor.cautions.Notice
     """
     out = []
     ent = nearest_heads(layout)
@@ -439,17 +440,18 @@ def layout_warnings(layout, wavelength, point_xy=()):
             names = (layout.arms[ent.arms[0]].name, layout.arms[ent.arms[1]].name)
             why = (f"end segments {ent.misalignment_deg:.0f} deg from collinear"
                    if not ent.collinear else "the arms are not rooted or long enough")
-            out.append(
-                f"entrance between '{names[0]}' and '{names[1]}' is {ent.width:.0f} m wide "
+            out.append(Notice(
+                "entrance-not-classic", f"entrance between '{names[0]}' and '{names[1]}' is {ent.width:.0f} m wide "
                 f"({ratio:.2f} L) but not a classic entrance ({why}): the general method "
                 f"ignores the interaction of the two heads, K' in the lee may be off by "
-                f"0.05 or more")
+                f"0.05 or more"))
     for name, x, y in point_xy:
         for arm in layout.arms:
             for tip, _ in arm.heads():
                 dist = float(np.hypot(x - tip[0], y - tip[1]))
                 if dist < 0.5 * wavelength:
-                    out.append(f"point '{name}' is {dist:.0f} m from the head of '{arm.name}', "
+                    out.append(Notice("near-head", f"point '{name}' is {dist:.0f} m from the head of '{arm.name}', "
                                f"within half a wavelength ({0.5 * wavelength:.0f} m): "
-                               f"near-field values are sensitive to the head's real shape")
+                               f"near-field values are sensitive to the head's real shape",
+                                      point=name))
     return out
