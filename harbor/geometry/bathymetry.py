@@ -13,7 +13,8 @@ import numpy as np
 
 from harbor.errors import InputError
 
-__all__ = ["Bathymetry", "constant", "from_soundings", "from_raster", "from_netcdf"]
+__all__ = ["Bathymetry", "constant", "from_soundings", "from_raster", "from_netcdf",
+           "from_geotiff"]
 
 
 @dataclass(frozen=True)
@@ -276,3 +277,58 @@ def from_netcdf(path, variable=None, x="x", y="y", positive="down",
         if positive == "up":
             vals = -vals
         return from_raster(ds[x].values, ds[y].values, vals, still_water_level)
+
+
+def from_geotiff(path, band=1, positive="down", still_water_level=0.0,
+                 transform=None) -> Bathymetry:
+    """Depths from a GeoTIFF raster (read with rasterio).
+
+    Parameters
+    ----------
+    path : str or path-like
+        A north-up GeoTIFF (no rotation terms) of depths in m.
+    band : int, optional
+        Band to read (1-based).
+    positive : {"down", "up"}, optional
+        ``"down"``: depths below chart datum; ``"up"``: bed elevations above it.
+    still_water_level : float, optional
+        Still-water level above chart datum (m).
+    transform : callable, optional
+        ``transform(x, y) -> (xw, yw)`` from the raster's CRS to the work frame; the
+        raster's cell centres are mapped through it (a conformal work frame keeps the
+        raster near-regular, and the mapped axes are used).
+
+    Returns
+    -------
+    Bathymetry
+
+    Notes
+    -----
+    Cell centres x = c + (j + 1/2) a, y = f + (i + 1/2) e from the affine transform
+    (a, b, c, d, e, f) with b = d = 0; nodata cells are filled from the nearest valid
+    cell (see :func:`from_raster`).
+    """
+    try:
+        import rasterio
+    except ImportError:  # pragma: no cover - rasterio is a dependency
+        raise InputError("reading GeoTIFF needs the rasterio package", file=str(path))
+    try:
+        with rasterio.open(path) as src:
+            vals = src.read(band).astype(float)
+            if src.nodata is not None:
+                vals[vals == src.nodata] = np.nan
+            tr = src.transform
+    except (OSError, ValueError, IndexError) as e:
+        raise InputError(f"cannot read bathymetry: {e}", file=str(path)) from None
+    if abs(tr.b) > 0 or abs(tr.d) > 0:
+        raise InputError("rotated GeoTIFF rasters are not supported", file=str(path))
+    ny, nx = vals.shape
+    x = tr.c + (np.arange(nx) + 0.5) * tr.a
+    y = tr.f + (np.arange(ny) + 0.5) * tr.e
+    if transform is not None:
+        xw, _ = transform(x, np.full(nx, y.mean()))
+        _, yw = transform(np.full(ny, x.mean()), y)
+        x, y = np.asarray(xw, float), np.asarray(yw, float)
+    if positive == "up":
+        vals = -vals
+    return from_raster(x, y, vals, still_water_level)
