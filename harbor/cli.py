@@ -395,13 +395,16 @@ def add_climate_parser(subparsers):
     argparse.ArgumentParser
         The ``climate`` parser (its ``func`` default is :func:`cmd_climate`).
     """
+    from harbor.study.alternatives import COMPARE_EXAMPLE
     from harbor.study.climate import CLIMATE_EXAMPLE
 
     sp = subparsers.add_parser(
         "climate", help="berth downtime (%% of time above the limit) from a wave climate table",
-        epilog=CLIMATE_EXAMPLE + "\n" + EPILOG_TAIL,
+        epilog=CLIMATE_EXAMPLE + "\n" + COMPARE_EXAMPLE + "\n" + EPILOG_TAIL,
         formatter_class=argparse.RawDescriptionHelpFormatter)
-    sp.add_argument("scenario", help="scenario file (TOML); its points' limits are used")
+    sp.add_argument("scenario", nargs="+",
+                    help="scenario file(s) (TOML); its points' limits are used; several "
+                         "files are compared as layout alternatives")
     sp.add_argument("--table", required=True, metavar="FILE",
                     help="climate table (CSV: height,period,from,percent[,spreading])")
     sp.add_argument("--arm", metavar="NAME",
@@ -412,7 +415,15 @@ def add_climate_parser(subparsers):
     sp.add_argument("--out", default="harbor-out", metavar="DIR",
                     help="output folder (default harbor-out)")
     sp.add_argument("--workers", type=int, metavar="N",
-                    help="threads to use (default: one per core)")
+                    help="threads or worker processes at most (default: one per core)")
+    sp.add_argument("--executor", choices=["auto", "serial", "threads", "local"],
+                    default="auto",
+                    help="where the solves run: auto (default: threads, or an embedded "
+                         "Dask cluster for long runs), serial, threads, local (embedded "
+                         "Dask cluster)")
+    sp.add_argument("--scheduler", metavar="ADDRESS",
+                    help="an existing Dask scheduler, e.g. tcp://head-node:8786 (default: "
+                         "the environment variable HARBOR_SCHEDULER; see docs/cluster.md)")
     sp.add_argument("--quiet", action="store_true", help="no progress bar")
     _add_method_option(sp)
     sp.set_defaults(func=cmd_climate)
@@ -437,7 +448,10 @@ def cmd_climate(args):
                                       read_climate, write_climate)
     from harbor.study.sweep import MoveRejected, move_head
 
-    sc = _load(args.scenario)
+    paths = args.scenario if isinstance(args.scenario, list) else [args.scenario]
+    if len(paths) > 1:
+        return _climate_alternatives(args, paths)
+    sc = _load(paths[0])
     if (args.arm is None) != (args.move is None):
         raise InputError("--arm and --move go together", key="--arm" if args.arm is None
                          else "--move")
@@ -462,14 +476,55 @@ def cmd_climate(args):
         if ent is not None:
             print(f"entrance between the nearest heads: {ent.width:.1f} m")
             title = f"Berth downtime by wave direction (entrance {ent.width:.1f} m)"
-    res = climate_downtime(sc, table, method=args.method, workers=args.workers,
-                           progress=_progress_printer(args.quiet))
+    with _climate_executor(args, table, 1) as ex:
+        res = climate_downtime(sc, table, method=args.method, workers=args.workers,
+                               executor=ex)
     written = write_climate(res, args.out, title=title)
     print(f"{res.downtime.attrs['table_rows']} climate rows, "
           f"{res.downtime.attrs['cases']} distinct (period, direction, spreading) cases")
     print(downtime_text(res))
     print(f"wrote {', '.join(str(p) for p in written)}")
     _print_warnings([w for w in res.warnings if w != pw])
+    print(f"note: {CAUTION_SHORT}")
+    return 0
+
+
+def _climate_executor(args, table, n_alternatives):
+    """The executor of ``harbor climate`` (connects to a scheduler before any solve)."""
+    from harbor.study.alternatives import count_tasks, table_estimate
+    from harbor.study.executor import make_executor
+
+    display = not getattr(args, "quiet", False) and sys.stderr.isatty()
+    return make_executor(getattr(args, "executor", "auto"),
+                         scheduler=getattr(args, "scheduler", None), workers=args.workers,
+                         n_tasks=count_tasks(table, n_alternatives),
+                         estimate=table_estimate(table), display=display)
+
+
+def _climate_alternatives(args, paths):
+    """``harbor climate A.toml B.toml ...``: compare layout alternatives."""
+    from harbor.outputs.alternatives import alternatives_text, write_alternatives
+    from harbor.study.alternatives import compare_alternatives
+    from harbor.study.climate import percent_warning, read_climate
+
+    if args.arm is not None or args.move is not None:
+        raise InputError("--arm and --move apply to one scenario; for several "
+                         "alternatives give each layout its own scenario file",
+                         key="--arm" if args.arm is not None else "--move")
+    scs = [_load(p) for p in paths]
+    table = read_climate(args.table)
+    pw = percent_warning(table)
+    if pw:
+        print(f"warning: {pw}")
+    with _climate_executor(args, table, len(scs)) as ex:
+        print(f"running on: {ex.describe()}")
+        ds = compare_alternatives(scs, table, method=args.method, executor=ex)
+    written = write_alternatives(ds, args.out)
+    print(f"{ds.sizes['alternative']} alternatives x {ds.sizes['row']} climate rows: "
+          f"{ds.attrs['cases']} distinct solves in {ds.attrs['tasks']} tasks")
+    print(alternatives_text(ds))
+    print(f"wrote {', '.join(str(p) for p in written)}")
+    _print_warnings([w for w in ds.attrs["warnings"].split("\n") if w and w != pw])
     print(f"note: {CAUTION_SHORT}")
     return 0
 

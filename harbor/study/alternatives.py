@@ -153,6 +153,47 @@ def group_tasks(alternative, periods, froms, spreads, heights=None, first_name=1
     return tasks, rows_of, cases, case_at
 
 
+def count_tasks(table, n_alternatives=1):
+    """Number of tasks of a climate study: distinct (period, spreading) per alternative.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`harbor.study.climate.read_climate`.
+    n_alternatives : int
+
+    Returns
+    -------
+    int
+    """
+    keys = zip(table["period"].to_numpy(float).tolist(),
+               table["spreading"].to_numpy(float).tolist())
+    return len(set(keys)) * int(n_alternatives)
+
+
+def table_estimate(table):
+    """Per-task cost of the screening tasks of a climate table.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`harbor.study.climate.read_climate`.
+
+    Returns
+    -------
+    harbor.study.executor.TaskEstimate
+        :data:`SCREENING_SOLVE` times the most directions any (period, spreading) has.
+    """
+    from harbor.study.executor import TaskEstimate
+
+    f = np.mod(table["from"].to_numpy(float), 360.0)
+    per = {}
+    for t, d, s in zip(table["period"].to_numpy(float), f, table["spreading"].to_numpy(float)):
+        per.setdefault((t, s), set()).add(d)
+    n = max((len(v) for v in per.values()), default=1)
+    return TaskEstimate(SCREENING_SOLVE[0] * n, SCREENING_SOLVE[1])
+
+
 def screening_estimate(tasks):
     """Per-task cost of screening tasks (the longest task's directions).
 
@@ -171,7 +212,7 @@ def screening_estimate(tasks):
 
 
 def solve_cases(scenario, cases, method="auto", executor=None, workers=None,
-                progress=None, display=False):
+                progress=None, display=None):
     """K' of distinct (period, direction, spreading) cases at a scenario's points.
 
     Parameters
@@ -187,8 +228,8 @@ def solve_cases(scenario, cases, method="auto", executor=None, workers=None,
         Threads when no executor is given.
     progress : callable, optional
         ``progress(name, done, total)`` after each task.
-    display : bool
-        Dask's progress bar on stderr instead.
+    display : bool, optional
+        Dask's progress bar on stderr instead (default: as the executor says).
 
     Returns
     -------
@@ -238,7 +279,7 @@ def _names(scenarios, names):
 
 def compare_alternatives(scenarios, table, method="auto", names=None, executor=None,
                          scheduler=None, workers=None, kind="auto", progress=None,
-                         display=False):
+                         display=None):
     """Downtime of every berth under every layout alternative for one wave climate.
 
     Parameters
@@ -265,8 +306,8 @@ def compare_alternatives(scenarios, table, method="auto", names=None, executor=N
         Backend when no scheduler is given.
     progress : callable, optional
         ``progress(name, done, total)`` after each task.
-    display : bool
-        Dask's own progress bar on stderr.
+    display : bool, optional
+        Dask's own progress bar on stderr (default: as the executor says).
 
     Returns
     -------
@@ -360,7 +401,8 @@ def compare_alternatives(scenarios, table, method="auto", names=None, executor=N
         from harbor.study.executor import make_executor
 
         executor = make_executor(kind, scheduler=scheduler, workers=workers,
-                                 n_tasks=len(tasks), estimate=screening_estimate(tasks))
+                                 n_tasks=len(tasks), estimate=screening_estimate(tasks),
+                                 display=bool(display))
     try:
         res = executor.map(solve_group, shared, tasks, progress=progress, display=display,
                            label="alternative cases")
@@ -377,6 +419,7 @@ def compare_alternatives(scenarios, table, method="auto", names=None, executor=N
     col = {a: [berths.index(p.name) for p in limited[a].points] for a in alts}
     for ia, a in enumerate(alts):
         limit[ia, col[a]] = [p.limit for p in limited[a].points]
+    per_alt = {}
     for task, (a, rows), r in zip(tasks, where, res):
         ia, cj = alts.index(a), col[a]
         idx = np.ix_([ia], rows, cj)
@@ -385,9 +428,14 @@ def compare_alternatives(scenarios, table, method="auto", names=None, executor=N
         exceeds[idx] = r["exceeds"][None]
         reach[ia, rows] = r["reaching"][task["direction_of"]]
         for x in r["warnings"]:
-            x = f"alternative '{a}': {x}" if na > 1 else x
-            if x not in warnings:
-                warnings.append(x)
+            per_alt.setdefault(x, [])
+            if a not in per_alt[x]:
+                per_alt[x].append(a)
+    # a warning every alternative gives is said once; the others name their alternative
+    for x, owners in per_alt.items():
+        x = x if len(owners) == na else f"alternative(s) {', '.join(repr(o) for o in owners)}: {x}"
+        if x not in warnings:
+            warnings.append(x)
 
     # sums over the rows in table order: independent of the order the tasks finished
     weighted = pct[None, :, None] * exceeds                      # (alt, row, berth)

@@ -152,12 +152,16 @@ class Executor:
         Threads or worker processes (for ``remote``, the workers present at connection).
     client : distributed.Client or None
         The Dask client of the distributed backends.
+    display : bool
+        Show Dask's progress bar on stderr in :meth:`map` unless told otherwise.
     address : str or None
         The scheduler's address (distributed backends).
     """
 
-    def __init__(self, kind, workers=1, client=None, cluster=None, own_client=True):
+    def __init__(self, kind, workers=1, client=None, cluster=None, own_client=True,
+                 display=False):
         self.kind = kind
+        self.display = bool(display)
         self.workers = int(workers)
         self.client = client
         self.cluster = cluster
@@ -193,7 +197,7 @@ class Executor:
             return f"embedded Dask cluster, {self.workers} worker process(es)"
         return f"Dask scheduler {self.address}, {self.workers} worker(s)"
 
-    def map(self, func, shared, tasks, progress=None, display=False, label="tasks"):
+    def map(self, func, shared, tasks, progress=None, display=None, label="tasks"):
         """Run ``func(shared, task)`` for every task.
 
         Parameters
@@ -209,8 +213,8 @@ class Executor:
         progress : callable, optional
             ``progress(label, done, total)`` after each finished task (not with
             ``display``).
-        display : bool
-            Show Dask's own progress bar on stderr.
+        display : bool, optional
+            Show Dask's own progress bar on stderr (default :attr:`display`).
         label : str
             Name given to ``progress``.
 
@@ -222,6 +226,8 @@ class Executor:
         tasks = list(tasks)
         if not tasks:
             return []
+        if display is None:
+            display = self.display
         if self.kind in ("serial", "threads"):
             return self._map_local(func, shared, tasks, progress, display, label)
         return self._map_distributed(func, shared, tasks, progress, display, label)
@@ -332,7 +338,8 @@ def scheduler_address(scheduler=None):
 
 
 def make_executor(kind="auto", scheduler=None, workers=None, n_tasks=1,
-                  estimate=TaskEstimate(1.0, 200 * 2**20), client=None, timeout=None):
+                  estimate=TaskEstimate(1.0, 200 * 2**20), client=None, timeout=None,
+                  display=False):
     """Choose and start an executor.
 
     Parameters
@@ -356,6 +363,8 @@ def make_executor(kind="auto", scheduler=None, workers=None, n_tasks=1,
         Use this client (it is not closed afterwards).
     timeout : float, optional
         Seconds to wait for the scheduler; default :data:`TIMEOUT_ENV` or 10.
+    display : bool
+        Show Dask's own progress bar (on stderr) while tasks run.
 
     Returns
     -------
@@ -373,7 +382,8 @@ def make_executor(kind="auto", scheduler=None, workers=None, n_tasks=1,
     if workers is not None and int(workers) < 1:
         raise InputError(f"--workers must be at least 1, got {workers}", key="--workers")
     if client is not None:
-        return Executor("remote", _n_workers(client), client=client, own_client=False)
+        return Executor("remote", _n_workers(client), client=client, own_client=False,
+                        display=display)
     address = scheduler_address(scheduler)
     if address is not None:
         if timeout is None:
@@ -383,7 +393,7 @@ def make_executor(kind="auto", scheduler=None, workers=None, n_tasks=1,
                 raise InputError(f"must be a number of seconds, got "
                                  f"{os.environ[TIMEOUT_ENV]!r}", key=TIMEOUT_ENV) from None
         c = _connect(address, timeout)
-        return Executor("remote", _n_workers(c), client=c)
+        return Executor("remote", _n_workers(c), client=c, display=display)
     cores, memory = machine_resources()
     if kind == "auto":
         if n_tasks <= 1 or workers == 1:
@@ -393,17 +403,17 @@ def make_executor(kind="auto", scheduler=None, workers=None, n_tasks=1,
         else:
             kind = "threads"
     if kind == "serial":
-        return Executor("serial", 1)
+        return Executor("serial", 1, display=display)
     if kind == "threads":
         n = max(1, min(int(workers or cores), max(int(n_tasks), 1)))
-        return Executor("threads", n)
+        return Executor("threads", n, display=display)
     from distributed import Client, LocalCluster
 
     n, mem = plan_local_cluster(max(int(n_tasks), 1), estimate, cores, memory, workers)
     cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True,
                            memory_limit=mem, dashboard_address=None)
     return Executor("local", n, client=Client(cluster, set_as_default=False),
-                    cluster=cluster)
+                    cluster=cluster, display=display)
 
 
 def _n_workers(client):
