@@ -273,13 +273,28 @@ class Executor:
 
     # ------------------------------------------------------------------ distributed
     def _map_distributed(self, func, shared, tasks, progress, display, label):
-        from distributed import as_completed
-
         from harbor.study import _dask_plugin
 
         token = f"harbor-shared-{uuid.uuid4().hex}"
         client = self.client
         client.register_plugin(_dask_plugin.SharedPayload(token, shared), name=token)
+        # as_completed and the progress bar look for a current client; ours is not the
+        # process-wide default (a user's own client may be)
+        with contextlib.ExitStack() as stack:
+            stack.enter_context(client.as_current())
+            stack.callback(self._forget, token)
+            return self._submit_all(client, token, func, tasks, progress, display, label)
+
+    def _forget(self, token):
+        with contextlib.suppress(Exception):
+            self.client.unregister_worker_plugin(token)
+
+    def _submit_all(self, client, token, func, tasks, progress, display, label):
+        from distributed import as_completed
+
+        from harbor.study import _dask_plugin
+
+        futures = []
         try:
             futures = [client.submit(_dask_plugin.run_task, func, token, t, pure=False,
                                      key=f"{label.replace(' ', '-')}-{i}-{token[-8:]}")
@@ -300,9 +315,11 @@ class Executor:
                     if progress is not None:
                         progress(label, done, len(tasks))
             return results
-        finally:
+        except BaseException:
+            # nothing half-done stays on the cluster: cancel what has not run
             with contextlib.suppress(Exception):
-                client.unregister_worker_plugin(token)
+                client.cancel(futures)
+            raise
 
 
 def _connect(address, timeout):
