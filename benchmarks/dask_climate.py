@@ -1,6 +1,6 @@
 """Layout alternatives x a wave climate on Dask: tasks, costs, speed-up and a projection.
 
-    python benchmarks/dask_climate.py [--alternatives 2] [--noop 200] [--json FILE]
+    python benchmarks/dask_climate.py [--alternatives 2] [--repeat 3] [--noop 200] [--json FILE]
 
 Uses the bundled demo harbour (points only, screening methods) and alternatives made by
 moving the west head (0, +20, -20 m, ...), against an invented 500-row scatter table
@@ -8,14 +8,14 @@ moving the west head (0, +20, -20 m, ...), against an invented 500-row scatter t
 above, so 10 (period, spreading) tasks of 5 directions per alternative). In one process
 it measures, side by side:
 
-1. per-task wall time and peak memory (tracemalloc: numpy reports its buffers to it)
-   of every task of one alternative, one after the other in this process;
-2. the scheduler's cost per task: no-op tasks through the same executor path on an
-   embedded cluster of one worker (submit, plugin look-up, result back);
-3. the same alternatives on embedded clusters of one and of two worker processes
-   (after a warm-up run in each, so that imports and compiled-kernel loading are not
-   counted), and the speed-up;
-4. checks that the two cluster runs and the serial run agree to 1e-12;
+1. the whole study serially in this process, and each task's wall time there; the peak
+   memory of a task (tracemalloc: numpy reports its buffers to it);
+2. embedded clusters of one and of two worker processes (started, then warmed up by one
+   run each so that imports and compiled-kernel loading are not counted): each task's
+   time on a worker, the scheduler's cost per task (no-op tasks through the same
+   executor path: submit, plugin look-up, result back), the whole study on each
+   cluster, runs interleaved, best of --repeat, the speed-up and the workers' memory;
+3. that the serial and both cluster results agree to 1e-12;
 
 and from those projects the wall time of 10 alternatives x the 500-row climate on 1, 8
 and 64 workers (assumptions printed with it). The machine this runs on may be shared:
@@ -71,6 +71,18 @@ def _noop(shared, task):
     return task
 
 
+def _timed(shared, task):
+    t0 = time.perf_counter()
+    solve_group(shared, task)
+    return None, time.perf_counter() - t0
+
+
+def _rss():
+    import psutil
+
+    return psutil.Process().memory_info().rss
+
+
 def load():
     try:
         return os.getloadavg()
@@ -82,6 +94,7 @@ def main():
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--alternatives", type=int, default=2)
     ap.add_argument("--noop", type=int, default=200, help="no-op tasks for the overhead")
+    ap.add_argument("--repeat", type=int, default=3, help="cluster runs of each size")
     ap.add_argument("--json", help="also write the figures to this file")
     a = ap.parse_args()
 
@@ -93,7 +106,7 @@ def main():
     print(f"machine: {os.cpu_count()} cores, load average {load()[0]:.1f} at start "
           "(shared with other jobs: timings are noisy)")
 
-    # 1. per-task time and memory, serial, one alternative
+    # 1. in this process: the whole study serially, per-task times, per-task memory
     limited = {n: dataclasses.replace(s, points=tuple(p for p in s.points
                                                       if p.limit is not None))
                for n, s in zip(names, scs)}
@@ -101,61 +114,76 @@ def main():
                                      heights=tab["height"])
     shared = {"scenarios": limited, "method": "auto"}
     solve_group(shared, tasks[0])                      # warm: compiled kernels, caches
-    times, peaks = [], []
-    for t in tasks:
+    t0 = time.perf_counter()
+    serial_ds = compare_alternatives(scs, tab, names=names, kind="serial")
+    wall_serial = time.perf_counter() - t0
+    times = [_timed(shared, t)[1] for t in tasks]
+    peaks = []
+    for t in tasks[:3]:                 # tracemalloc slows numpy a lot: memory only
         tracemalloc.start()
-        t0 = time.perf_counter()
         solve_group(shared, t)
-        times.append(time.perf_counter() - t0)
         peaks.append(tracemalloc.get_traced_memory()[1])
         tracemalloc.stop()
-    per_task = statistics.median(times)
-    per_dir = sum(times) / sum(len(t["directions"]) for t in tasks)
-    print(f"tasks per alternative: {len(tasks)} (period, spreading), "
-          f"{len(cases)} distinct solves, {len(tab)} rows")
-    print(f"per task (5 directions, {len(limited[names[0]].points)} berths), serial: median "
-          f"{per_task:.2f} s, min {min(times):.2f}, max {max(times):.2f}; "
-          f"{per_dir:.3f} s per direction")
-    print(f"per task peak memory (tracemalloc): median {statistics.median(peaks) / 2**20:.1f} "
-          f"MiB, max {max(peaks) / 2**20:.1f} MiB")
+    print(f"tasks per alternative: {len(tasks)} (period, spreading) with 5 directions "
+          f"each, {len(cases)} distinct solves, {len(tab)} rows, "
+          f"{len(limited[names[0]].points)} berths")
+    print(f"in this process, serial: {a.alternatives} alternatives {wall_serial:.1f} s; "
+          f"per task median {statistics.median(times):.2f} s (min {min(times):.2f}, max "
+          f"{max(times):.2f})")
+    print(f"per task peak memory (tracemalloc, numpy buffers): "
+          f"{max(peaks) / 2**20:.1f} MiB")
 
+    # 2. embedded clusters of one and two workers, runs interleaved so that both see
+    #    the same drift of the machine's load; best of --repeat
     from distributed import Client, LocalCluster
 
-    results = {}
-    walls = {}
-    overhead = None
-    serial_ds = compare_alternatives(scs, tab, names=names, kind="serial")
+    ex, start, warm = {}, {}, {}
     for n in (1, 2):
         t0 = time.perf_counter()
         cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True,
-                               dashboard_address=None)
+                               dashboard_address=":0")
         client = Client(cluster, set_as_default=False)
-        start = time.perf_counter() - t0
-        ex = Executor("local", n, client=client, cluster=cluster)
-        with ex:
+        client.wait_for_workers(n)
+        start[n] = time.perf_counter() - t0
+        ex[n] = Executor("local", n, client=client, cluster=cluster)
+        t0 = time.perf_counter()
+        compare_alternatives(scs[:1], tab, names=names[:1], executor=ex[n])   # warm-up
+        warm[n] = time.perf_counter() - t0
+    all_tasks = [t for nm in names for t in group_tasks(
+        nm, tab["period"], tab["from"], tab["spreading"], heights=tab["height"])[0]]
+    worker_times = [r[1] for r in ex[1].map(_timed, shared, all_tasks)]
+    ex[1].map(_noop, None, list(range(10)))
+    t0 = time.perf_counter()
+    ex[1].map(_noop, None, list(range(a.noop)))
+    overhead = (time.perf_counter() - t0) / a.noop
+    walls = {1: [], 2: []}
+    results = {}
+    for _ in range(a.repeat):
+        for n in (1, 2):
             t0 = time.perf_counter()
-            compare_alternatives(scs[:1], tab, names=names[:1], executor=ex)   # warm-up
-            warm = time.perf_counter() - t0
-            if n == 1:
-                ex.map(_noop, None, list(range(10)))
-                t0 = time.perf_counter()
-                ex.map(_noop, None, list(range(a.noop)))
-                overhead = (time.perf_counter() - t0) / a.noop
-            t0 = time.perf_counter()
-            ds = compare_alternatives(scs, tab, names=names, executor=ex)
-            walls[n] = time.perf_counter() - t0
-            results[n] = ds
-        print(f"{n} worker(s): cluster start {start:.1f} s, warm-up run {warm:.1f} s, "
-              f"{a.alternatives} alternatives x {len(tab)} rows: {walls[n]:.1f} s "
-              f"(load {load()[0]:.1f})")
+            results[n] = compare_alternatives(scs, tab, names=names, executor=ex[n])
+            walls[n].append(time.perf_counter() - t0)
+    rss = {n: max(ex[n].client.run(_rss).values()) for n in (1, 2)}
+    for n in (1, 2):
+        print(f"{n} worker(s): cluster start {start[n]:.1f} s, warm-up run {warm[n]:.1f} s, "
+              f"{a.alternatives} alternatives x {len(tab)} rows: best {min(walls[n]):.1f} s "
+              f"of {', '.join(f'{w:.1f}' for w in walls[n])}; worker RSS "
+              f"{rss[n] / 2**20:.0f} MiB")
+    per_task = statistics.median(worker_times)
+    print(f"per task on a worker: median {per_task:.2f} s (min {min(worker_times):.2f}, "
+          f"max {max(worker_times):.2f}, {len(worker_times)} tasks)")
     print(f"scheduler overhead per task (no-op tasks, 1 worker): {overhead * 1e3:.1f} ms")
-    speedup = walls[1] / walls[2]
-    print(f"speed-up 1 -> 2 workers: {speedup:.2f}")
+    speedup = min(walls[1]) / min(walls[2])
+    print(f"speed-up 1 -> 2 workers: {speedup:.2f} (load average now {load()[0]:.1f} on "
+          f"{os.cpu_count()} cores)")
     for n, ds in results.items():
         for v in ("kd", "downtime", "downtime_total"):
             d = np.nanmax(np.abs(ds[v].values - serial_ds[v].values))
             assert d <= 1e-12, (n, v, d)
     print("serial, 1-worker and 2-worker results agree to 1e-12: yes")
+    for e in ex.values():
+        e.close()
+    start, warm = start[2], warm[2]
 
     # projection: 10 alternatives x 500 rows
     n_alt, n_tasks = 10, 10 * len(tasks)
@@ -163,7 +191,7 @@ def main():
     eff = speedup / 2.0
     print("\nprojection, 10 alternatives x 500-row climate (screening methods):")
     print(f"  assumptions: {n_tasks} tasks ({len(tasks)} (period, spreading) per "
-          f"alternative, 5 directions each) of {tt:.2f} s (median measured above, one core); "
+          f"alternative, 5 directions each) of {tt:.2f} s (median on a worker, above); "
           f"scheduler cost {overhead * 1e3:.1f} ms per task, paid serially by the scheduler; "
           f"cluster start and first-task warm-up {start + warm:.0f} s once (measured here, "
           "loaded machine); wall = start + ceil(tasks / W) x task / e + tasks x overhead, "
@@ -186,6 +214,7 @@ def main():
         with open(a.json, "w") as fh:
             json.dump({"tasks_per_alternative": len(tasks), "per_task_s": times,
                        "per_task_peak_bytes": peaks, "overhead_s": overhead,
+                       "worker_task_s": worker_times, "serial_s": wall_serial,
                        "walls_s": walls, "speedup": speedup, "cluster_start_s": start,
                        "warm_s": warm, "projection_s": proj, "load": load()}, fh, indent=1)
 

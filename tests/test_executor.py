@@ -40,14 +40,13 @@ NOWHERE = "tcp://127.0.0.1:9"
 
 @pytest.fixture(scope="module")
 def cluster():
-    from distributed import Client, LocalCluster
-
-    c = LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                     dashboard_address=None, memory_limit="1GiB")
-    client = Client(c, set_as_default=False)
-    yield c, client
-    client.close()
-    c.close()
+    # the embedded cluster of `--executor local`, limited to two worker processes
+    ex = make_executor("local", workers=2, n_tasks=8,
+                       estimate=TaskEstimate(1.0, 100 * 2**20))
+    assert ex.kind == "local" and ex.workers == 2
+    ex.client.wait_for_workers(2, timeout=60)
+    yield ex.cluster, ex.client
+    ex.close()
 
 
 @pytest.fixture(scope="module")

@@ -428,7 +428,8 @@ def make_executor(kind="auto", scheduler=None, workers=None, n_tasks=1,
 
     n, mem = plan_local_cluster(max(int(n_tasks), 1), estimate, cores, memory, workers)
     cluster = LocalCluster(n_workers=n, threads_per_worker=1, processes=True,
-                           memory_limit=mem, dashboard_address=None)
+                           memory_limit=mem, host="127.0.0.1",
+                           dashboard_address=":0")
     return Executor("local", n, client=Client(cluster, set_as_default=False),
                     cluster=cluster, display=display)
 
