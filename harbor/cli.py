@@ -452,6 +452,10 @@ def cmd_climate(args):
     if len(paths) > 1:
         return _climate_alternatives(args, paths)
     sc = _load(paths[0])
+    from harbor.study.alternatives import has_alternatives
+
+    if has_alternatives(paths[0]):
+        return _climate_alternatives(args, paths)
     if (args.arm is None) != (args.move is None):
         raise InputError("--arm and --move go together", key="--arm" if args.arm is None
                          else "--move")
@@ -511,14 +515,22 @@ def _climate_alternatives(args, paths):
         raise InputError("--arm and --move apply to one scenario; for several "
                          "alternatives give each layout its own scenario file",
                          key="--arm" if args.arm is not None else "--move")
-    scs = [_load(p) for p in paths]
+    from harbor.study.alternatives import load_alternatives
+
+    scs, names = [], []
+    for p in paths:
+        more, their = load_alternatives(p)
+        scs.extend(more)
+        names.extend(their)
+    if len(set(names)) != len(names):            # the same file name in two folders
+        names = None
     table = read_climate(args.table)
     pw = percent_warning(table)
     if pw:
         print(f"warning: {pw}")
     with _climate_executor(args, table, len(scs)) as ex:
         print(f"running on: {ex.describe()}")
-        ds = compare_alternatives(scs, table, method=args.method, executor=ex)
+        ds = compare_alternatives(scs, table, method=args.method, executor=ex, names=names)
     written = write_alternatives(ds, args.out)
     print(f"{ds.sizes['alternative']} alternatives x {ds.sizes['row']} climate rows: "
           f"{ds.attrs['cases']} distinct solves in {ds.attrs['tasks']} tasks")

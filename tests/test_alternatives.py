@@ -164,3 +164,53 @@ def test_cli_several_scenarios_bad_input(files, hand, tmp_path, capsys):
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and "--arm" in err[0]
     assert not out.exists()
+
+
+VARIANTS = GAP_TOML + """
+[[alternative]]
+name = "narrow"
+[[alternative.arm]]
+name = "east"
+line = [[500300.0, 5000000.0], [500030.0, 5000000.0]]
+
+[[alternative]]
+name = "no pontoon"
+leave_out = ["pontoon"]
+"""
+
+
+def test_alternatives_in_one_file(files, hand, tmp_path):
+    table, expect = hand
+    p = tmp_path / "harbour.toml"
+    p.write_text(VARIANTS)
+    ds = compare_alternatives([p], table, kind="serial", method=M)
+    assert list(ds.alternative.values) == ["harbour", "narrow", "no pontoon"]
+    for alt, ref in (("harbour", "wide"), ("narrow", "narrow"), ("no pontoon", "wide")):
+        names, tot = expect[ref][0], expect[ref][1]
+        if alt == "no pontoon":
+            names, tot = names[:1], tot[:1]
+        np.testing.assert_allclose(ds.downtime_total.sel(alternative=alt, point=names), tot,
+                                   atol=1e-12)
+    assert np.isnan(float(ds.downtime_total.sel(alternative="no pontoon", point="pontoon")))
+    # the file is still a plain scenario for every other command
+    assert harbor.load_scenario(p).layout.arms[1].name == "east"
+
+
+@pytest.mark.parametrize("extra, message", [
+    ('[[alternative]]\nname = "x"\nleve_out = ["pontoon"]\n', "did you mean 'leave_out'"),
+    ('[[alternative]]\nname = "x"\nleave_out = ["pontonn"]\n', "did you mean 'pontoon'"),
+    ('[[alternative]]\nname = "x"\n[[alternative]]\nname = "x"\n', "used twice"),
+    ('[[alternative]]\nleave_out = []\n', "needs a name"),
+    ('[[alternative]]\nname = "x"\n[[alternative.arm]]\nname = "east"\n'
+     'line = [[500300.0, 5000000.0]]\n', "[[alternative]] 'x'"),
+])
+def test_alternative_mistakes(tmp_path, capsys, extra, message):
+    p = tmp_path / "bad.toml"
+    p.write_text(GAP_TOML + "\n" + extra)
+    t = tmp_path / "t.csv"
+    t.write_text("height,period,from,percent\n1,6,180,100\n")
+    out = tmp_path / "out"
+    assert main(["climate", str(p), "--table", str(t), "--out", str(out)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and message in err[0] and str(p) in err[0], err
+    assert not out.exists()

@@ -30,7 +30,10 @@ COMPARE_EXAMPLE = """several scenarios (layout alternatives):
   harbor climate layout-a.toml layout-b.toml layout-c.toml --table climate.csv --out cmp
   harbor climate layout-*.toml --table climate.csv --scheduler tcp://head-node:8786
 
-With two or more scenarios, writes alternatives.csv (alternative,point,limit,total and
+  harbor climate harbour-with-alternatives.toml --table climate.csv --out cmp
+
+With two or more scenarios (or one whose file has [[alternative]] tables: variants of
+its layout, see docs/screening.md), writes alternatives.csv (alternative,point,limit,total and
 one column per sector), alternatives-rows.csv (every row at every point under every
 alternative) and alternatives.png (alternatives side by side per berth). Alternatives
 are named by their file names; berths are matched by their point names.
@@ -258,6 +261,143 @@ def solve_cases(scenario, cases, method="auto", executor=None, workers=None,
     return out
 
 
+#: Keys of an ``[[alternative]]`` table of a scenario file.
+ALTERNATIVE_KEYS = ("name", "arm", "land", "point", "leave_out")
+_REPLACEABLE = ("arm", "land", "point")
+
+
+def _raw_toml(path):
+    try:
+        import tomllib as toml
+    except ModuleNotFoundError:  # pragma: no cover - Python 3.10
+        import tomli as toml
+    return toml.loads(Path(path).read_bytes().decode("utf-8"))
+
+
+def has_alternatives(path) -> bool:
+    """Whether a (valid) scenario file has ``[[alternative]]`` tables.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+
+    Returns
+    -------
+    bool
+    """
+    return bool(_raw_toml(path).get("alternative"))
+
+
+def load_alternatives(path):
+    """A scenario file and its layout alternatives.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        Scenario file (TOML). Besides the keys of a scenario it may hold
+        ``[[alternative]]`` tables, each a variant of the file's own layout::
+
+            [[alternative]]
+            name = "west head +20 m"       # required, unique
+            leave_out = ["old spur"]        # arms, land or points to remove (by name)
+            [[alternative.arm]]             # replaces the arm of that name, or adds one
+            name = "west arm"
+            line = [[302804.8, 4985898.0], [302673.8, 4986178.9], [302850.5, 4986261.4]]
+            [[alternative.point]]           # the same for [[alternative.land]], points
+            name = "new berth"
+            at = [302930.0, 4986180.0]
+            limit = 0.3
+
+        Arms, land and points given in an alternative take the place of those of the
+        same name (or are added); everything else (site, seas, grid) is the file's.
+
+    Returns
+    -------
+    scenarios : list of Scenario
+        The file's own layout first, then one per ``[[alternative]]``.
+    names : list of str
+        The file name without ``.toml`` for the first, then each alternative's name.
+
+    Raises
+    ------
+    InputError
+        Naming the file, the alternative and the key: anything
+        :func:`harbor.load_scenario` rejects (in the file or in an alternative's layout),
+        an unknown key, a missing or repeated name, a ``leave_out`` name that the file
+        does not have.
+    """
+    import copy
+    import difflib
+
+    from harbor.study.scenario import load_scenario, scenario_from_dict
+
+    base = load_scenario(path)                 # the whole file is valid TOML and a scenario
+    file = str(path)
+    data = _raw_toml(path)
+    alts = data.pop("alternative", None) or []
+    stem = Path(file).stem
+    if not isinstance(alts, list) or not all(isinstance(a, dict) for a in alts):
+        raise InputError("must be tables: write [[alternative]] (double brackets)",
+                         file=file, key="alternative")
+    scs, names = [base], [stem]
+    present = {k: [t.get("name") for t in data.get(k, []) if isinstance(t, dict)]
+               for k in _REPLACEABLE}
+    for i, alt in enumerate(alts, 1):
+        where = f"[[alternative]] {i}"
+        for k in alt:
+            if k not in ALTERNATIVE_KEYS:
+                near = difflib.get_close_matches(str(k), ALTERNATIVE_KEYS, n=1, cutoff=0.5)
+                hint = (f"; did you mean '{near[0]}'?" if near
+                        else f"; valid keys: {', '.join(ALTERNATIVE_KEYS)}")
+                raise InputError(f"unknown key{hint}", file=file, where=where, key=str(k))
+        name = alt.get("name")
+        if not isinstance(name, str) or not name.strip():
+            raise InputError("every alternative needs a name (text)", file=file,
+                             where=where, key="name")
+        name = name.strip()
+        where = f"[[alternative]] '{name}'"
+        if name in names:
+            raise InputError(f"the name '{name}' is used twice (the file's own layout is "
+                             f"called '{stem}')", file=file, where=where, key="name")
+        leave = alt.get("leave_out", [])
+        if not isinstance(leave, list) or not all(isinstance(x, str) for x in leave):
+            raise InputError("must be a list of names", file=file, where=where,
+                             key="leave_out")
+        known = [n for v in present.values() for n in v if n]
+        for x in leave:
+            if x not in known:
+                near = difflib.get_close_matches(x, known, n=1)
+                hint = f" (did you mean '{near[0]}'?)" if near else ""
+                raise InputError(f"no arm, land or point named '{x}' in the file{hint}",
+                                 file=file, where=where, key="leave_out")
+        d = copy.deepcopy(data)
+        for kind in _REPLACEABLE:
+            items = [t for t in d.get(kind, []) if not (isinstance(t, dict)
+                                                        and t.get("name") in leave)]
+            new = alt.get(kind, [])
+            if not isinstance(new, list) or not all(isinstance(t, dict) for t in new):
+                raise InputError(f"must be tables: write [[alternative.{kind}]]", file=file,
+                                 where=where, key=kind)
+            for t in new:
+                at = [j for j, o in enumerate(items) if o.get("name") == t.get("name")
+                      and t.get("name") is not None]
+                if at:
+                    items[at[0]] = t
+                else:
+                    items.append(t)
+            if items or kind in d:
+                d[kind] = items
+        try:
+            sc = scenario_from_dict(d, path=file)
+        except InputError as e:
+            raise InputError(e.problem, file=file,
+                             where=f"{where}: {e.where}" if e.where else where,
+                             key=e.key) from None
+        scs.append(sc)
+        names.append(name)
+    return scs, names
+
+
 def _names(scenarios, names):
     if names is not None:
         names = [str(n) for n in names]
@@ -286,7 +426,8 @@ def compare_alternatives(scenarios, table, method="auto", names=None, executor=N
     ----------
     scenarios : sequence of Scenario or path
         The alternatives (scenario files or objects from :func:`harbor.load_scenario`);
-        their own sea states are not used. Berths are matched by point name; points
+        a file with ``[[alternative]]`` tables gives its own layout and each of them
+        (:func:`load_alternatives`). Their own sea states are not used. Berths are matched by point name; points
         without a ``limit`` are left out.
     table : str, os.PathLike or pandas.DataFrame
         The climate (see :func:`harbor.study.climate.read_climate`).
@@ -294,7 +435,7 @@ def compare_alternatives(scenarios, table, method="auto", names=None, executor=N
         Passed to :func:`harbor.solve`.
     names : sequence of str, optional
         Names of the alternatives; default the file names without ``.toml`` (the
-        title for a scenario built in code).
+        title for a scenario built in code; the ``name`` of an ``[[alternative]]``).
     executor : harbor.study.executor.Executor, optional
         Where to run; default one from :func:`harbor.study.executor.make_executor`
         with ``kind``, ``scheduler`` and ``workers`` (closed afterwards).
@@ -357,14 +498,23 @@ def compare_alternatives(scenarios, table, method="auto", names=None, executor=N
     from harbor.cautions import CAUTION_SHORT
     from harbor.solver.assemble import BREAKING_RATIO
     from harbor.study.climate import SECTORS, climate_table, percent_warning, sector_of
-    from harbor.study.scenario import load_scenario
-
     if isinstance(scenarios, (str, Path)) or not hasattr(scenarios, "__len__"):
         scenarios = [scenarios]
-    scs = [load_scenario(s) if isinstance(s, (str, Path)) else s for s in scenarios]
+    scs, given = [], []
+    for s in scenarios:
+        if isinstance(s, (str, Path)):
+            more, their = load_alternatives(s)
+            scs.extend(more)
+            given.extend(their if len(more) > 1 else [None])
+        else:
+            scs.append(s)
+            given.append(None)
     if not scs:
         raise InputError("no alternative given: at least one scenario is needed",
                          key="scenario")
+    if names is None and any(g is not None for g in given):
+        auto = _names(scs, None)
+        names = [g if g is not None else a for g, a in zip(given, auto)]
     alts = _names(scs, names)
     tab = climate_table(table)
     limited = {}
