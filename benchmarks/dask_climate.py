@@ -8,8 +8,10 @@ moving the west head (0, +20, -20 m, ...), against an invented 500-row scatter t
 above, so 10 (period, spreading) tasks of 5 directions per alternative). In one process
 it measures, side by side:
 
-1. the whole study serially in this process, and each task's wall time there; the peak
-   memory of a task (tracemalloc: numpy reports its buffers to it);
+1. the whole study serially in this process, and each task's wall time there, with one
+   BLAS thread per task (as the executor runs them) and, side by side, with the
+   libraries' default threads; the peak memory of a task (tracemalloc: numpy reports
+   its buffers to it);
 2. embedded clusters of one and of two worker processes (started, then warmed up by one
    run each so that imports and compiled-kernel loading are not counted): each task's
    time on a worker, the scheduler's cost per task (no-op tasks through the same
@@ -37,7 +39,7 @@ import pandas as pd
 import harbor
 from harbor.cli import demo_path
 from harbor.study.alternatives import compare_alternatives, group_tasks, solve_group
-from harbor.study.executor import Executor, make_executor
+from harbor.study.executor import Executor, task_threads
 from harbor.study.sweep import move_head
 
 
@@ -117,7 +119,9 @@ def main():
     t0 = time.perf_counter()
     serial_ds = compare_alternatives(scs, tab, names=names, kind="serial")
     wall_serial = time.perf_counter() - t0
-    times = [_timed(shared, t)[1] for t in tasks]
+    times_default = [_timed(shared, t)[1] for t in tasks]      # BLAS threads as loaded
+    with task_threads():                                         # what the executor does
+        times = [_timed(shared, t)[1] for t in tasks]
     peaks = []
     for t in tasks[:3]:                 # tracemalloc slows numpy a lot: memory only
         tracemalloc.start()
@@ -129,7 +133,9 @@ def main():
           f"{len(limited[names[0]].points)} berths")
     print(f"in this process, serial: {a.alternatives} alternatives {wall_serial:.1f} s; "
           f"per task median {statistics.median(times):.2f} s (min {min(times):.2f}, max "
-          f"{max(times):.2f})")
+          f"{max(times):.2f}) with one BLAS thread per task; with the libraries' default "
+          f"threads median {statistics.median(times_default):.2f} s (min "
+          f"{min(times_default):.2f}, max {max(times_default):.2f})")
     print(f"per task peak memory (tracemalloc, numpy buffers): "
           f"{max(peaks) / 2**20:.1f} MiB")
 
@@ -214,7 +220,7 @@ def main():
         with open(a.json, "w") as fh:
             json.dump({"tasks_per_alternative": len(tasks), "per_task_s": times,
                        "per_task_peak_bytes": peaks, "overhead_s": overhead,
-                       "worker_task_s": worker_times, "serial_s": wall_serial,
+                       "worker_task_s": worker_times, "default_threads_task_s": times_default, "serial_s": wall_serial,
                        "walls_s": walls, "speedup": speedup, "cluster_start_s": start,
                        "warm_s": warm, "projection_s": proj, "load": load()}, fh, indent=1)
 

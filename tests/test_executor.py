@@ -18,7 +18,7 @@ import pytest
 import harbor
 from harbor.cli import main
 from harbor.errors import InputError
-from harbor.study.alternatives import compare_alternatives
+from harbor.study.alternatives import compare_alternatives, group_tasks, solve_group
 from harbor.study.executor import (SCHEDULER_ENV, TIMEOUT_ENV, TaskEstimate, make_executor,
                                    plan_local_cluster)
 from harbor.study.scenario import Sea
@@ -36,17 +36,6 @@ ROWS = [(5.0, 180.0, 10.0, 20.0), (5.0, 200.0, 10.0, 10.0), (7.0, 190.0, 25.0, 1
 M = "superposition"
 #: an address where nothing listens (port 9 is the discard service, closed here)
 NOWHERE = "tcp://127.0.0.1:9"
-
-
-@pytest.fixture(scope="module")
-def cluster():
-    # the embedded cluster of `--executor local`, limited to two worker processes
-    ex = make_executor("local", workers=2, n_tasks=8,
-                       estimate=TaskEstimate(1.0, 100 * 2**20))
-    assert ex.kind == "local" and ex.workers == 2
-    ex.client.wait_for_workers(2, timeout=60)
-    yield ex.cluster, ex.client
-    ex.close()
 
 
 @pytest.fixture(scope="module")
@@ -77,6 +66,24 @@ def study(tmp_path_factory):
     return scs, table, hand
 
 
+@pytest.fixture(scope="module")
+def cluster(study):
+    # the embedded cluster of `--executor local`, limited to two worker processes
+    ex = make_executor("local", workers=2, n_tasks=8,
+                       estimate=TaskEstimate(1.0, 100 * 2**20))
+    assert ex.kind == "local" and ex.workers == 2
+    ex.client.wait_for_workers(2, timeout=60)
+    # warm both workers (imports, compiled kernels) while this process computes the
+    # serial reference: one small solve pinned to each, not waited for
+    task = group_tasks("w", [5.0], [180.0], [10.0])[0][0]
+    payload = {"scenarios": {"w": study[0][0]}, "method": M}
+    warm = [ex.client.submit(solve_group, payload, task, workers=[w], pure=False)
+            for w in ex.client.scheduler_info()["workers"]]
+    yield ex.cluster, ex.client
+    del warm
+    ex.close()
+
+
 def _check(ds, hand):
     for alt, (kd, total) in hand.items():
         np.testing.assert_allclose(ds.kd.sel(alternative=alt).values, kd, rtol=0,
@@ -86,7 +93,7 @@ def _check(ds, hand):
 
 
 @pytest.fixture(scope="module")
-def serial(study):
+def serial(study, cluster):
     scs, table, hand = study
     ds = compare_alternatives(scs, table, kind="serial", method=M)
     assert ds.attrs["tasks"] == 8 and ds.attrs["executor"].startswith("one task")

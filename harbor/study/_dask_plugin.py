@@ -55,4 +55,7 @@ def run_task(func, token, task):
     except KeyError:
         raise RuntimeError(f"worker has no payload for run {token}: the worker plugin "
                            "was not set up") from None
-    return func(shared, task)
+    from harbor.study.executor import task_threads
+
+    with task_threads():
+        return func(shared, task)
