@@ -56,7 +56,8 @@ LOCAL_CLUSTER_FROM_S = 60.0
 #: (``distributed.nanny.pre-spawn-environ``), so every backend computes alike.
 TASK_BLAS_THREADS = 1
 #: Memory a worker process takes before its first task (interpreter, numpy, scipy,
-#: shapely, pyproj, harbor), bytes; measured about 250 MB, rounded up.
+#: shapely, pyproj, harbor), bytes: a worker measured 290 MB resident after screening
+#: tasks (benchmarks/dask_climate.py), rounded up.
 WORKER_BASE_MEMORY = 400 * 2**20
 
 
