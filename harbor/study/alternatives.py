@@ -11,6 +11,11 @@ order of the table, so the numbers are the same on every backend.
 
 The diffraction coefficient of a linear solution does not depend on the incident height,
 so each distinct (period, direction, spreading) is solved once, at unit height.
+
+The grain is chosen for the full-field method as well: there one (alternative, period,
+spreading) is one factorisation per frequency band serving all the directions of the
+task, and the mesh travels in the shared payload beside the scenarios (once per worker,
+:mod:`harbor.study.executor`); only :func:`solve_group` changes.
 """
 
 from __future__ import annotations
