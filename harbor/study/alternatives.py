@@ -31,20 +31,6 @@ from harbor.errors import InputError
 #: methods (measured 0.15-0.25 s on the demo harbour, one core; memory well below this).
 SCREENING_SOLVE = (0.25, 150 * 2**20)
 
-COMPARE_EXAMPLE = """several scenarios (layout alternatives):
-  harbor climate layout-a.toml layout-b.toml layout-c.toml --table climate.csv --out cmp
-  harbor climate layout-*.toml --table climate.csv --scheduler tcp://head-node:8786
-
-  harbor climate harbour-with-alternatives.toml --table climate.csv --out cmp
-
-With two or more scenarios (or one whose file has [[alternative]] tables: variants of
-its layout, see docs/screening.md), writes alternatives.csv (alternative,point,limit,total and
-one column per sector), alternatives-rows.csv (every row at every point under every
-alternative) and alternatives.png (alternatives side by side per berth). Alternatives
-are named by their file names; berths are matched by their point names.
-"""
-
-
 # --------------------------------------------------------------------------- worker side
 
 def _solve_direction(scenario, method, period, from_deg, spreading, name):
@@ -467,8 +453,8 @@ def compare_alternatives(scenarios, table, method="auto", names=None, executor=N
         ``row_height`` (m), ``row_period`` (s), ``row_from`` (degrees true),
         ``row_spreading``, ``row_percent`` (%), ``row_sector``; alternative coordinates
         ``alternative_title`` and ``alternative_file``. NaN (and ``exceeds`` False)
-        where an alternative has no such berth. Attributes: ``warnings`` (newline
-        separated), ``cases`` (distinct solves), ``tasks``, ``executor``,
+        where an alternative has no such berth. Attributes: ``warnings`` (list of str),
+        ``cases`` (distinct solves), ``tasks``, ``executor``,
         ``table_file``, ``cautions``.
 
     Raises
@@ -662,7 +648,7 @@ def compare_alternatives(scenarios, table, method="auto", names=None, executor=N
             "row_sector": ("row", sect, {"units": "degree"}),
         },
         attrs={
-            "warnings": "\n".join(warnings),
+            "warnings": list(warnings),
             "cases": ncases,
             "tasks": len(tasks),
             "executor": described,
