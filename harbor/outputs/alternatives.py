@@ -152,7 +152,7 @@ def plot_alternatives(ds, path, title=None, dpi=150):
     and title; the foot gives the climate and the cautions.
     """
     from harbor.outputs._atomic import atomic_path
-    from harbor.outputs.maps import new_figure, wrap_to
+    from harbor.outputs.style import MUTED, new_figure, wrap_to
 
     alts = [str(a) for a in ds.alternative.values]
     berths = [str(p) for p in ds.point.values]
@@ -197,7 +197,7 @@ def plot_alternatives(ds, path, title=None, dpi=150):
             f"distinct solves in {ds.attrs.get('tasks', '?')} tasks"]
     foot += wrap_to(str(ds.attrs.get("cautions", "")), 9.0, 7.5)
     fig.text(0.02, 0.02, "\n".join(foot), fontsize=7.5, va="bottom", ha="left",
-             color="#555555")
+             color=MUTED)
     with atomic_path(path) as tmp:
         fig.savefig(tmp, dpi=dpi, format="png")
     return path
