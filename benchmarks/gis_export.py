@@ -52,7 +52,7 @@ def main():
         for label, r in (("demo 5 m", res), (f"{a.spacing:g} m", fine)):
             n = f"{r.sizes['x']}x{r.sizes['y']}"
             t_nc = best(lambda: write_netcdf(r, d / "grid.nc"), a.repeat)
-            t_gj = best(lambda: write_geojson_isolines(r, sc, "swell NW", d / "i.geojson"),
+            t_gj = best(lambda: write_geojson_isolines(r, "swell NW", d / "i.geojson"),
                         a.repeat)
             t_gis = best(lambda: write_gis(r, d), a.repeat)
             print(f"{label + ' ' + n:>14} {t_nc:8.2f}s {t_gj:8.2f}s {t_gis:18.2f}s")

@@ -1,7 +1,9 @@
 """The ``harbor`` command: thin wrappers over the Python API (parse, call, print).
 
 Exit codes: 0 success; 2 bad input (one line on stderr naming the file, the key and the
-problem); 1 internal error (a short message asking for a report).
+problem); 1 internal error (a short message asking for a report); 3 the output location
+cannot be written (permission, read-only, in use by another run); 4 disk full; 130
+interrupted; 143 terminated (docs/errors.md).
 """
 
 from __future__ import annotations
@@ -289,23 +291,8 @@ def cmd_diagram(args):
     if not (0 < args.direction < 180):
         raise InputError(f"--direction must be strictly between 0 and 180 degrees, got {args.direction:g}",
                          key="--direction")
-    if args.width is not None and not args.width > 0:
-        raise InputError(f"--width must be positive, got {args.width:g}", key="--width")
-    if args.spreading <= 0:
+    if not args.spreading > 0:
         raise InputError(f"--spreading must be positive, got {args.spreading:g}", key="--spreading")
-    ext = args.extent
-    if ext is None:
-        half = 4.0 if args.case == "semi-infinite" else max(4.0, (args.width or 0) / 2 + 3)
-        ext = (-half, -2.0, half, 8.0)
-    if not (ext[0] < ext[2] and ext[1] < ext[3]):
-        raise InputError("--extent must be XMIN YMIN XMAX YMAX with XMIN < XMAX and YMIN < YMAX",
-                         key="--extent")
-    res = args.resolution or max((ext[2] - ext[0]) / 200.0, 0.02)
-    if args.random and res < 0.05:
-        res = 0.05
-    ds = diagram_field(args.case, args.direction, width=args.width, extent=tuple(ext),
-                       resolution=res, kind="random" if args.random else "regular",
-                       spreading=args.spreading)
     out = args.out
     suffix = os.path.splitext(out)[1].lower()
     if suffix not in (".png", ".pdf"):
@@ -313,6 +300,13 @@ def cmd_diagram(args):
     parent = os.path.dirname(os.path.abspath(out))
     if not os.path.isdir(parent):
         raise InputError(f"folder '{parent}' does not exist", key="--out")
+    try:
+        ds = diagram_field(args.case, args.direction, width=args.width, extent=args.extent,
+                           resolution=args.resolution,
+                           kind="random" if args.random else "regular",
+                           spreading=args.spreading)
+    except InputError as e:   # name the option, not the function's argument
+        raise InputError(e.problem, key=f"--{e.key}" if e.key else None) from None
     plot_diagram(ds, out)
     print(f"wrote {out} ({ds.attrs['method']})")
     print(f"note: {CAUTION_SHORT}")
@@ -439,6 +433,9 @@ def add_climate_parser(subparsers):
                     help="an existing Dask scheduler, e.g. tcp://head-node:8786 (default: "
                          "the environment variable HARBOR_SCHEDULER; see docs/cluster.md)")
     sp.add_argument("--quiet", action="store_true", help="no progress bar")
+    sp.add_argument("--max-cases", type=int, metavar="N",
+                    help="most distinct (period, direction, spreading) cases to solve "
+                         "(default 2000; the count and a time estimate are printed first)")
     _add_method_option(sp)
     sp.set_defaults(func=cmd_climate)
     return sp
@@ -458,7 +455,8 @@ def cmd_climate(args):
         0; user mistakes raise :class:`harbor.errors.InputError`.
     """
     from harbor.outputs.studies import downtime_text, write_climate
-    from harbor.study.climate import climate_downtime, percent_warning, read_climate
+    from harbor.study.climate import (check_case_count, climate_downtime, duplicate_warning,
+                                      percent_warning, read_climate)
 
     paths = args.scenario if isinstance(args.scenario, list) else [args.scenario]
     if len(paths) > 1:
@@ -477,6 +475,10 @@ def cmd_climate(args):
     pw = percent_warning(table)
     if pw:
         print(f"warning: {pw}")
+    dw = duplicate_warning(table)
+    if dw:
+        print(f"warning: {dw}")
+    print(check_case_count(table, getattr(args, "max_cases", None)))
     try:
         with _climate_executor(args, table, 1) as ex:
             res = climate_downtime(sc, table, method=args.method, workers=args.workers,
@@ -495,8 +497,6 @@ def cmd_climate(args):
         print(f"entrance between the nearest heads: {width:.1f} m")
         title = f"Berth downtime by wave direction (entrance {width:.1f} m)"
     written = write_climate(res, args.out, title=title)
-    print(f"{res.attrs['table_rows']} climate rows, "
-          f"{res.attrs['cases']} distinct (period, direction, spreading) cases")
     print(downtime_text(res))
     print(f"wrote {', '.join(str(p) for p in written)}")
     _print_warnings([w for w in res.attrs["warnings"] if w != pw])
@@ -712,25 +712,67 @@ def build_parser():
 
 def main(argv=None):
     """Entry point of the ``harbor`` command; returns the exit code."""
+    from harbor.errors import MachineError, Terminated, machine_fault
+    from harbor.outputs._atomic import claim_output
+
     parser = build_parser()
     args = parser.parse_args(argv)
+    restore = _on_sigterm_raise(Terminated)
     try:
-        return int(args.func(args) or 0)
+        out = getattr(args, "out", None)
+        if out is None:
+            return int(args.func(args) or 0)
+        with claim_output(out, "file" if args.command in ("diagram", "import") else "dir"):
+            return int(args.func(args) or 0)
     except InputError as e:
         print(f"harbor: {e.line()}", file=sys.stderr)
         return 2
+    except MachineError as e:
+        print(f"harbor: {e.line()}", file=sys.stderr)
+        return e.exit_code
+    except Terminated:
+        print("harbor: terminated (SIGTERM); no output written", file=sys.stderr)
+        return 143
     except KeyboardInterrupt:
         print("harbor: interrupted; no output written", file=sys.stderr)
         return 130
     except BrokenPipeError:
         return 0
+    except OSError as e:
+        fault = machine_fault(e)
+        if fault is None or os.environ.get("HARBOR_DEBUG"):
+            return _internal_error(e)
+        print(f"harbor: {fault.line()}", file=sys.stderr)
+        return fault.exit_code
     except Exception as e:  # pragma: no cover - internal errors
-        print(f"harbor: internal error ({type(e).__name__}: {e}). This is a bug in harbor "
-              f"{__version__}; please report it with the command and the scenario file.",
-              file=sys.stderr)
-        if os.environ.get("HARBOR_DEBUG"):
-            raise
-        return 1
+        return _internal_error(e)
+    finally:
+        restore()
+
+
+def _on_sigterm_raise(exc_type):
+    """Make SIGTERM raise ``exc_type`` in the main thread (clean-ups run as for Ctrl-C);
+    return the function that restores the previous handler."""
+    import signal
+    import threading
+
+    if threading.current_thread() is not threading.main_thread():
+        return lambda: None
+
+    def handler(signum, frame):
+        raise exc_type()
+
+    old = signal.signal(signal.SIGTERM, handler)
+    return lambda: signal.signal(signal.SIGTERM, old)
+
+
+def _internal_error(e):  # pragma: no cover - internal errors
+    print(f"harbor: internal error ({type(e).__name__}: {e}). This is a bug in harbor "
+          f"{__version__}; please report it with the command and the scenario file.",
+          file=sys.stderr)
+    if os.environ.get("HARBOR_DEBUG"):
+        raise e
+    return 1
 
 
 if __name__ == "__main__":

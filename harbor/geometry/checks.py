@@ -103,7 +103,8 @@ def clean_arm_line(line, tol):
 
 
 def check_crossings(lines, tol):
-    """Arms may touch at an end (end-to-end or end-to-side) but not cross or overlap.
+    """Arms may touch (end to end, end to side, or corner to corner where they turn back:
+    a joint, see :func:`arms_cross_at`) but not cross or overlap.
 
     Parameters
     ----------
@@ -129,7 +130,8 @@ def check_crossings(lines, tol):
                     raise GeometryError("overlaps {other} along part of its length",
                                         index=j, other=i)
                 p = np.array(geom.coords[0])
-                if np.min(np.hypot(*(ends - p).T)) > tol:
+                if (np.min(np.hypot(*(ends - p).T)) > tol
+                        and arms_cross_at(lines[i], lines[j], p, tol)):
                     raise GeometryError("crosses {other} at {at}; arms may touch at an end "
                                         "but not cross", index=j, other=i, at=tuple(p))
 
@@ -160,6 +162,9 @@ def clean_land_outline(outline, tol):
         aw = aw[:-1]
     if len(aw) < 3:
         raise GeometryError("needs at least three distinct vertices")
+    if not encloses_area(aw, tol):
+        # before shapely, which calls a flat ring a "self-intersection"
+        raise GeometryError("the outline encloses no area: its vertices lie on one line")
     poly = shapely.Polygon(aw)
     if not poly.is_valid:
         # the reason carries work-frame coordinates, which the user never wrote
@@ -231,6 +236,7 @@ def point_problems(layout, x, y, tol=None):
     -------
     numpy.ndarray of object
         ``None`` where the point is fine, else a phrase such as ``"is on land"``,
+        ``"is more than 100 km from the layout ..."`` (:func:`far_from_layout`),
         ``"is on an arm ('west arm')"``, ``"is on the head of the arm 'west arm'"``.
 
     Notes
@@ -243,15 +249,18 @@ def point_problems(layout, x, y, tol=None):
     if tol is None:
         tol = layout_tolerance(layout, [np.column_stack([x.ravel(), y.ravel()])])
     out = np.full(x.shape, None, dtype=object)
-    pts = shapely.points(x, y)
+    far = far_from_layout(layout, x, y)
+    out[far] = (f"is more than {MAX_LAYOUT_EXTENT / 1000:g} km from the layout: not a "
+                "point of this harbour")
+    pts = shapely.points(np.where(far, 0.0, x), np.where(far, 0.0, y))
     land = layout.land_union()
     if not land.is_empty:
-        on_land = shapely.dwithin(land, pts, tol)
+        on_land = shapely.dwithin(land, pts, tol) & ~far
         out[on_land] = "is on land"
     heads = {(a, e): tip for a, e, tip, _ in layout.heads()}
     for arm in layout.arms:
         line = np.asarray(arm.line, float)
-        on = shapely.dwithin(arm.geometry, pts, tol) & (out == None)  # noqa: E711
+        on = shapely.dwithin(arm.geometry, pts, tol) & (out == None) & ~far  # noqa: E711
         if not on.any():
             continue
         out[on] = f"is on an arm ('{arm.name}')"
@@ -289,3 +298,154 @@ def check_points(layout, xy, tol=None):
     for i, p in enumerate(probs):
         if p is not None:
             raise GeometryError(f"the point {{at}} {p}", index=i, at=tuple(xy[i]))
+
+
+def _directions_at(line: np.ndarray, p: np.ndarray, tol: float) -> list:
+    """Angles (rad) of the directions in which ``line`` leaves point ``p`` (one at an end,
+    two at an interior vertex or inside a segment)."""
+    out = []
+    for a, b in zip(line[:-1], line[1:]):
+        ab = b - a
+        L2 = float(ab @ ab)
+        s = float(np.clip((p - a) @ ab / L2, 0.0, 1.0))
+        if np.hypot(*(a + s * ab - p)) > tol:
+            continue
+        if np.hypot(*(b - p)) > tol:       # the segment leaves p towards b
+            out.append(np.arctan2(*(b - p)[::-1]))
+        if np.hypot(*(a - p)) > tol:       # ... and towards a
+            out.append(np.arctan2(*(a - p)[::-1]))
+    # a vertex is reached from two segments: keep distinct directions only
+    uniq = []
+    for t in out:
+        if all(abs(np.angle(np.exp(1j * (t - u)))) > 1e-9 for u in uniq):
+            uniq.append(t)
+    return uniq
+
+
+def arms_cross_at(line_a, line_b, p, tol: float) -> bool:
+    """Whether two arms that meet at ``p`` cross there (rather than touch).
+
+    Parameters
+    ----------
+    line_a, line_b : array_like, shape (n, 2)
+        The two polylines (m, work frame).
+    p : array_like, shape (2,)
+        A point both pass through (m).
+    tol : float
+        Distance (m) within which positions coincide.
+
+    Returns
+    -------
+    bool
+        True when each arm passes from one side of the other to the other side at p.
+        Arms that meet at an end, or meet at a corner of each and turn back (two
+        breakwaters built against each other: a joint), only touch.
+
+    Notes
+    -----
+    Around p each arm leaves in one direction (an end) or two (passing through). They
+    cross when both pass through and the two directions of one separate the two of the
+    other in angle.
+    """
+    a = np.asarray(line_a, float)
+    b = np.asarray(line_b, float)
+    p = np.asarray(p, float)
+    da = _directions_at(a, p, tol)
+    db = _directions_at(b, p, tol)
+    if len(da) < 2 or len(db) < 2:
+        return False
+    base = da[0]
+
+    def ang(t):
+        return np.mod(t - base, 2 * np.pi)
+
+    a2 = ang(da[1])
+    inside = [0 < ang(t) < a2 for t in db[:2]]
+    return inside[0] != inside[1]
+
+
+def encloses_area(outline, tol: float) -> bool:
+    """Whether a closed outline encloses an area, or is a line (all vertices within
+    ``tol`` of the line through its two farthest vertices).
+
+    Parameters
+    ----------
+    outline : array_like, shape (n, 2)
+        Vertices (m).
+    tol : float
+        Distance (m) within which positions coincide.
+
+    Returns
+    -------
+    bool
+    """
+    v = np.asarray(outline, float)
+    i = int(np.argmax(np.hypot(*(v - v[0]).T)))
+    j = int(np.argmax(np.hypot(*(v - v[i]).T)))
+    d = v[j] - v[i]
+    n = np.hypot(*d)
+    if n <= tol:
+        return False
+    off = np.abs(d[0] * (v[:, 1] - v[i, 1]) - d[1] * (v[:, 0] - v[i, 0])) / n
+    return bool(off.max() > tol)
+
+
+#: Largest extent of a layout (arms and points, m): the longest breakwaters are a few
+#: kilometres and a harbour study covers tens; a vertex farther than this from the rest
+#: is a typo (a dropped digit in an easting), not a harbour.
+MAX_LAYOUT_EXTENT = 100_000.0
+
+
+def stray_vertex(coord_sets):
+    """The vertex that makes a layout wider than :data:`MAX_LAYOUT_EXTENT`, if any.
+
+    Parameters
+    ----------
+    coord_sets : sequence of (where, key, array (n, 2))
+        The arms' lines and the points (m, work frame), labelled for the message.
+
+    Returns
+    -------
+    tuple or None
+        ``(where, key, problem)`` for the vertex farthest from the median of all
+        vertices when the layout spans more than :data:`MAX_LAYOUT_EXTENT`; None
+        otherwise.
+    """
+    allxy = np.concatenate([a for _, _, a in coord_sets])
+    if float(np.ptp(allxy, axis=0).max()) <= MAX_LAYOUT_EXTENT:
+        return None
+    mid = np.median(allxy, axis=0)
+    best = None
+    for where, key, a in coord_sets:
+        d = np.hypot(*(a - mid).T)
+        j = int(np.argmax(d))
+        if best is None or d[j] > best[0]:
+            best = (float(d[j]), where, key, j, len(a))
+    dist, where, key, j, n = best
+    pre = f"vertex {j + 1}: " if n > 1 else ""
+    return (where, key, f"{pre}lies {dist / 1000:.4g} km from the rest of the layout; a "
+            f"layout spans at most {MAX_LAYOUT_EXTENT / 1000:g} km (a mistyped coordinate?)")
+
+
+def far_from_layout(layout, x, y):
+    """Whether points lie farther than :data:`MAX_LAYOUT_EXTENT` from the layout's arms
+    (or are not finite).
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+    x, y : numpy.ndarray
+        Work frame (m), same shape.
+
+    Returns
+    -------
+    numpy.ndarray of bool
+    """
+    if not layout.arms:
+        return ~(np.isfinite(x) & np.isfinite(y))
+    xmin, ymin, xmax, ymax = layout.bounds()
+    with np.errstate(over="ignore", invalid="ignore"):
+        dx = np.maximum(np.maximum(xmin - x, x - xmax), 0.0)
+        dy = np.maximum(np.maximum(ymin - y, y - ymax), 0.0)
+        d = np.hypot(dx, dy)
+    return ~(d <= MAX_LAYOUT_EXTENT)

@@ -18,6 +18,7 @@ from harbor.errors import InputError
 from harbor.solver.accuracy import accuracy_warnings
 from harbor.solver.layout import METHOD_GENERAL, layout_field, layout_warnings
 from harbor.solver.random import random_sea_field
+from harbor.solver.resolution import grid_notices
 from harbor.waves.dispersion import wavelength as _wavelength
 from harbor.waves.spectra import BM_PEAK_RATIO, jonswap_peak_period, random_components
 
@@ -259,6 +260,7 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         wavelengths.append(L)
         reaching.append(reach)
         more = list(layout_warnings(scenario.layout, L, [(p[0], p[1], p[2]) for p in pts]))
+        more += grid_notices(scenario.grid, L, s.name)
         if method == "field":
             from harbor.solver.accuracy import field_method_notes
 

@@ -25,6 +25,8 @@ import xarray as xr
 
 from harbor.cautions import CAUTION_SHORT
 from harbor.errors import InputError
+from harbor.study._files import MAX_TABLE_BYTES, read_text
+from harbor.study._limits import range_problem
 
 #: Required columns of a climate table; ``spreading`` is optional.
 CLIMATE_COLUMNS = ("height", "period", "from", "percent")
@@ -97,6 +99,9 @@ def _cell(raw, file, where, column, *, positive=False, lo=None, hi=None):
     if lo is not None and not (lo <= v <= hi):
         raise InputError(f"must be between {lo:g} and {hi:g} degrees, got {v:g}", file=file,
                          where=where, key=column)
+    problem = range_problem(column, v, positive)
+    if problem:
+        raise InputError(problem, file=file, where=where, key=column)
     return v
 
 
@@ -142,7 +147,101 @@ def _validate(header, records, file, lines):
     df = pd.DataFrame(out, columns=["row", "line", "height", "period", "from", "percent",
                                     "spreading"]).set_index("row")
     df.attrs["file"] = file
+    _check_total(df, file)
     return df
+
+
+def _duplicates(df):
+    """Pairs (first row, repeating row) of rows with the same sea state."""
+    key = df[["height", "period", "from", "spreading"]].copy()
+    key["from"] = np.mod(key["from"], 360.0)
+    rep = key.duplicated(keep="first")
+    if not rep.any():
+        return []
+    first = {}
+    for row, k in zip(key.index, map(tuple, key.to_numpy())):
+        first.setdefault(k, row)
+    return [(first[tuple(key.loc[r])], r) for r in key.index[rep]]
+
+
+def _check_total(df, file):
+    # More than 100 % of the time is not a climate: the downtime would exceed 100 %.
+    total = float(df["percent"].sum())
+    if total > 100.0 + PERCENT_TOLERANCE:
+        dup = _duplicates(df)
+        hint = (f"; row {dup[0][1]} repeats row {dup[0][0]} (same height, period, from "
+                f"and spreading){' and more' if len(dup) > 1 else ''}: merge or remove "
+                "repeated rows") if dup else ""
+        raise InputError(f"the percentages add up to {total:.2f}, more than 100 (within "
+                         f"{PERCENT_TOLERANCE:g}){hint}", file=file, key="percent")
+
+
+#: Most distinct (period, direction, spreading) cases ``harbor climate`` solves unless
+#: asked for more (``--max-cases``): at about :data:`SECONDS_PER_CASE` each, 2000 cases take
+#: some 15 minutes.
+MAX_CLIMATE_CASES = 2000
+#: Rough cost of one distinct climate case at a few points (s; measured on the demo
+#: climate on two shared cores: 31-34 cases in 10-14 s).
+SECONDS_PER_CASE = 0.4
+
+
+def case_count(table) -> int:
+    """Number of distinct (period, direction, spreading) cases of a climate table: each is
+    solved once.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`read_climate` or :func:`climate_table`.
+
+    Returns
+    -------
+    int
+    """
+    keys = pd.DataFrame({"period": table["period"].to_numpy(float),
+                         "from": np.mod(table["from"].to_numpy(float), 360.0),
+                         "spreading": table["spreading"].to_numpy(float)})
+    return int((~keys.duplicated()).sum())
+
+
+def check_case_count(table, limit=MAX_CLIMATE_CASES) -> str:
+    """The line announcing the size of a climate run; refuses one beyond ``limit``.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`read_climate`.
+    limit : int, optional
+        Most distinct cases accepted (None or absent: :data:`MAX_CLIMATE_CASES`).
+
+    Returns
+    -------
+    str
+        ``"N climate rows, M distinct (period, direction, spreading) cases: about ..."``
+        with the estimate M × :data:`SECONDS_PER_CASE` (one thread).
+
+    Raises
+    ------
+    InputError
+        When M > ``limit`` (key ``--max-cases``), naming M and the estimate.
+    """
+    if limit is None:
+        limit = MAX_CLIMATE_CASES
+    if isinstance(limit, bool) or not isinstance(limit, int) or limit < 1:
+        raise InputError(f"must be a whole number of at least 1, got {limit!r}",
+                         key="--max-cases")
+    n = case_count(table)
+    est = n * SECONDS_PER_CASE
+    when = (f"{est:.0f} s" if est < 120 else f"{est / 60:.0f} min" if est < 7200
+            else f"{est / 3600:.1f} h")
+    line = (f"{len(table)} climate rows, {n} distinct (period, direction, spreading) "
+            f"cases: about {when} on one core (rough estimate)")
+    if n > limit:
+        raise InputError(f"the table has {n:,} distinct (period, direction, spreading) "
+                         f"cases, more than the {limit:,} solved without asking (about "
+                         f"{when}); coarsen the table's bins or give --max-cases {n}",
+                         file=table.attrs.get("file"), key="--max-cases")
+    return line
 
 
 def read_climate(path):
@@ -177,18 +276,8 @@ def read_climate(path):
     .. [1] Shafranovich, Y. (2005). Common Format and MIME Type for Comma-Separated
        Values (CSV) Files. IETF RFC 4180.
     """
-    p = Path(path)
     file = str(path)
-    if not p.exists():
-        raise InputError("file not found", file=file)
-    if p.is_dir():
-        raise InputError("is a directory, not a climate table", file=file)
-    try:
-        text = p.read_bytes().decode("utf-8-sig")
-    except UnicodeDecodeError:
-        raise InputError("not UTF-8 text", file=file) from None
-    except OSError as e:
-        raise InputError(f"cannot read the file ({e.strerror})", file=file) from None
+    text = read_text(path, "climate table", MAX_TABLE_BYTES)
     header, records, lines = None, [], []
     try:
         for line_no, rec in _numbered_rows(text):
@@ -256,6 +345,32 @@ def percent_warning(table):
         return (f"{pre}the percentages add up to {total:.2f}, not 100 (within "
                 f"{PERCENT_TOLERANCE:g}); downtime is computed from them as given")
     return None
+
+
+def duplicate_warning(table):
+    """A warning naming rows that repeat an earlier row's sea state.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`read_climate` or :func:`climate_table`.
+
+    Returns
+    -------
+    str or None
+        The warning (rows with the same height, period, direction and spreading as an
+        earlier row: their percentages count again, as given), else None. A table whose
+        percentages then exceed 100 is refused by the reader.
+    """
+    dup = _duplicates(table)
+    if not dup:
+        return None
+    file = table.attrs.get("file")
+    pre = f"{file}: " if file else ""
+    listed = ", ".join(f"row {b} repeats row {a}" for a, b in dup[:5])
+    more = f" and {len(dup) - 5} more" if len(dup) > 5 else ""
+    return (f"{pre}{listed}{more} (same height, period, from and spreading); their "
+            "percentages are added as given")
 
 
 # --------------------------------------------------------------------------- solving

@@ -27,6 +27,7 @@ import numpy as np
 import pyproj
 
 from harbor.errors import InputError
+from harbor.study._files import MAX_LAYOUT_FILE_BYTES, check_file
 
 #: Default chord tolerance (m): the largest distance allowed between a DXF curve (arc,
 #: bulge, circle, ellipse, spline) and the polyline that replaces it. 0.1 m is well
@@ -560,8 +561,10 @@ def read_layout(path, arms=None, land=None, points=None, *, name_field="name",
     def err_file(problem, layer=None):
         return InputError(problem, file=file, where=f"layer '{layer}'" if layer else None)
 
-    if not p.exists():
-        raise err_file("file not found")
+    try:  # a FIFO, device, folder or link loop is named before GDAL or ezdxf opens it
+        check_file(p, "layout file", MAX_LAYOUT_FILE_BYTES)
+    except InputError as e:
+        raise err_file(e.problem) from None
     if not isinstance(chord, (int, float)) or isinstance(chord, bool) or \
             not math.isfinite(chord) or chord <= 0:
         raise err_file(f"the chord tolerance must be a positive number of metres, "

@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import difflib
 import math
-import numbers
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -23,6 +22,10 @@ from harbor.errors import InputError
 from harbor.geometry import checks
 from harbor.geometry.layout import Arm, Land, Layout, Point
 from harbor.geometry.site import Site, lonlat_problem, parse_crs
+from harbor.solver.resolution import coarse_grid_problem
+from harbor.study._files import MAX_SCENARIO_BYTES, read_text
+from harbor.study._limits import (MAX_ARM_VERTICES, MAX_COORDINATE, MAX_LAND_VERTICES,
+                                  PEAK_RATIO, as_real, range_problem)
 
 
 @dataclass(frozen=True)
@@ -182,15 +185,22 @@ class _Reader:
                 raise self.err("missing key", where, key)
             return default
         v = table[key]
-        if isinstance(v, bool) or not isinstance(v, numbers.Real):
+        f = as_real(v)
+        if f is None:
             raise self.err(f"must be a number, got {_show(v)}", where, key)
-        v = float(v)
-        if not math.isfinite(v):
-            raise self.err(f"must be a finite number, got {v}", where, key)
+        if not math.isfinite(f):
+            what = (f"is too large to be a number here (an integer of {len(str(abs(v)))} "
+                    "digits)" if isinstance(v, int) else
+                    f"must be a finite number, got {_show(v)}")
+            raise self.err(what, where, key)
+        v = f
         if positive and v <= 0:
             raise self.err(f"must be positive, got {v:g}", where, key)
         if lo is not None and hi is not None and not (lo <= v <= hi):
             raise self.err(f"must be between {lo:g} and {hi:g}, got {v:g}", where, key)
+        problem = range_problem(key, v, positive)
+        if problem:
+            raise self.err(problem, where, key)
         return v
 
     def string(self, table, key, where, *, required=True, default=None, choices=None):
@@ -212,13 +222,17 @@ class _Reader:
 
     def xy(self, v, where, key, label=""):
         if (not isinstance(v, (list, tuple, np.ndarray)) or len(v) != 2
-                or any(isinstance(c, bool) or not isinstance(c, numbers.Real) for c in v)):
+                or any(as_real(c) is None for c in v)):
             raise self.err(f"{label}must be a pair of numbers [x, y], got {_show(v)}",
                            where, key)
-        x, y = float(v[0]), float(v[1])
+        x, y = as_real(v[0]), as_real(v[1])
         if not (math.isfinite(x) and math.isfinite(y)):
             raise self.err(f"{label}coordinates must be finite, got {_show(v)}", where,
                            key)
+        if max(abs(x), abs(y)) > MAX_COORDINATE:
+            raise self.err(f"{label}coordinate {_show(v)} is larger than "
+                           f"{MAX_COORDINATE:g} in magnitude: no CRS reaches that far",
+                           where, key)
         return x, y
 
     def polyline(self, table, key, where, min_len):
@@ -228,6 +242,11 @@ class _Reader:
         if not isinstance(v, (list, tuple, np.ndarray)) or len(v) < min_len:
             raise self.err(f"must be a list of at least {min_len} [x, y] pairs, got "
                            f"{_show(v)}", where, key)
+        most = MAX_LAND_VERTICES if key == "outline" else MAX_ARM_VERTICES
+        if len(v) > most:
+            raise self.err(f"has {len(v):,} vertices, more than the {most:,} allowed; "
+                           "simplify the line (vertices a fraction of a grid spacing "
+                           "apart add nothing)", where, key)
         return np.array([self.xy(p, where, key, f"vertex {i + 1}: ")
                          for i, p in enumerate(v)], float)
 
@@ -283,18 +302,8 @@ def load_scenario(path) -> Scenario:
     ----------
     Preston-Werner, T. et al. (2021). TOML v1.0.0. https://toml.io/en/v1.0.0
     """
-    p = Path(path)
     file = str(path)
-    if not p.exists():
-        raise InputError("file not found", file=file)
-    if p.is_dir():
-        raise InputError("is a directory, not a scenario file", file=file)
-    try:
-        text = p.read_bytes().decode("utf-8")
-    except UnicodeDecodeError:
-        raise InputError("not UTF-8 text (a TOML file must be UTF-8)", file=file) from None
-    except OSError as e:
-        raise InputError(f"cannot read the file ({e.strerror})", file=file) from None
+    text = read_text(path, "scenario file", MAX_SCENARIO_BYTES)
     try:
         data = _toml.loads(text)
     except _toml.TOMLDecodeError as e:
@@ -454,8 +463,8 @@ def _read_grid_table(r, data):
     if "bounds" in grid_t:
         b = grid_t["bounds"]
         if (not isinstance(b, (list, tuple)) or len(b) != 4 or
-                any(isinstance(c, bool) or not isinstance(c, numbers.Real)
-                    or not math.isfinite(c) for c in b)):
+                any(as_real(c) is None or not math.isfinite(as_real(c))
+                    or abs(as_real(c)) > MAX_COORDINATE for c in b)):
             raise r.err(f"must be four numbers [xmin, ymin, xmax, ymax], got "
                         f"{_show(b)}", "[grid]", "bounds")
         raw_bounds = [float(c) for c in b]
@@ -510,6 +519,10 @@ def _build_layout(r, site, work, raw_arms, raw_lands, raw_points):
     pts_w = [(w, n, work(w, "at", a)[0], lim) for w, n, a, lim in raw_points]
     allxy = np.concatenate([a for _, _, a, _ in arms_w] +
                            [p[None, :] for _, _, p, _ in pts_w])
+    stray = checks.stray_vertex([(w, "line", a) for w, _, a, _ in arms_w]
+                                + [(w, "at", p[None, :]) for w, _, p, _ in pts_w])
+    if stray:
+        raise r.err(stray[2], stray[0], stray[1])
     tol = checks.tolerance(float(np.ptp(allxy, axis=0).max()))
     show_xy = _shower(site)
 
@@ -560,7 +573,9 @@ def _shower(site):
 
 def _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g):
     """The grid: bounds (given, or around arms and points) and spacing (given, or a
-    tenth of the shortest wavelength), within :data:`MAX_GRID_POINTS`."""
+    tenth of the shortest wavelength), within :data:`MAX_GRID_POINTS`; at least
+    :data:`harbor.solver.resolution.MIN_POINTS_PER_WAVELENGTH` points per wavelength."""
+    given = spacing is not None
     if raw_bounds is not None:
         xs, ys = np.meshgrid([raw_bounds[0], raw_bounds[2]], [raw_bounds[1], raw_bounds[3]])
         cw = work("[grid]", "bounds", np.column_stack([xs.ravel(), ys.ravel()]))
@@ -588,6 +603,10 @@ def _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g):
                         f"{n:,} grid points, more than {MAX_GRID_POINTS:,}; a spacing "
                         f"of {fit:g} m or more would fit (or narrow the bounds)",
                         "[grid]", "spacing")
+    problem = coarse_grid_problem(spacing, [s.period for s in seas], depth, g,
+                                  given=given)
+    if problem:
+        raise r.err(problem, "[grid]", "spacing")
     return GridSpec(spacing=float(spacing), bounds=bounds)
 
 
@@ -624,6 +643,11 @@ def _read_sea(r: _Reader, t: dict, i: int) -> Sea:
             if k in t:
                 raise r.err("applies to spectrum = \"jonswap\" only", where, k)
     peak = r.number(t, "peak_period", where, required=False, positive=True)
+    if peak is not None and not (PEAK_RATIO[0] <= peak / period <= PEAK_RATIO[1]):
+        raise r.err(f"{peak:g} s is {peak / period:.3g} times the period T1/3 = "
+                    f"{period:g} s; a JONSWAP peak period is {PEAK_RATIO[0]:g} to "
+                    f"{PEAK_RATIO[1]:g} times T1/3 (about 1.05-1.13 for gamma 1-7)",
+                    where, "peak_period")
     gamma = r.number(t, "gamma", where, required=False, default=3.3, positive=True)
     if gamma < 1.0:
         # gamma < 1 would make the peak lower than the Pierson-Moskowitz shape it
