@@ -145,7 +145,8 @@ class Scenario:
 MAX_GRID_POINTS = 4_000_000
 
 _KEYS = {
-    "top": ("title", "site", "arm", "land", "sea", "point", "grid"),
+    "top": ("title", "site", "arm", "land", "sea", "point", "grid",
+            "alternative"),  # layout alternatives: read by harbor.study.alternatives
     "site": ("crs", "depth", "g"),
     "arm": ("name", "line", "rooted"),
     "land": ("name", "outline"),
