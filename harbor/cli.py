@@ -717,7 +717,8 @@ def main(argv=None):
 
     parser = build_parser()
     args = parser.parse_args(argv)
-    restore = _on_sigterm_raise(Terminated)
+    signals = []
+    restore = _on_signals_raise(Terminated, signals)
     try:
         out = getattr(args, "out", None)
         if out is None:
@@ -738,21 +739,27 @@ def main(argv=None):
         return 130
     except BrokenPipeError:
         return 0
-    except OSError as e:
-        fault = machine_fault(e)
+    except Exception as e:
+        if signals:
+            # the signal's exception was raised inside code that turned it into another
+            # one (an extension module being imported reports "initialization failed")
+            term = signals[-1] != 2
+            print(f"harbor: {'terminated (SIGTERM)' if term else 'interrupted'}; no output "
+                  "written", file=sys.stderr)
+            return 143 if term else 130
+        fault = machine_fault(e) if isinstance(e, OSError) else None
         if fault is None or os.environ.get("HARBOR_DEBUG"):
             return _internal_error(e)
         print(f"harbor: {fault.line()}", file=sys.stderr)
         return fault.exit_code
-    except Exception as e:  # pragma: no cover - internal errors
-        return _internal_error(e)
     finally:
         restore()
 
 
-def _on_sigterm_raise(exc_type):
-    """Make SIGTERM raise ``exc_type`` in the main thread (clean-ups run as for Ctrl-C);
-    return the function that restores the previous handler."""
+def _on_signals_raise(exc_type, seen):
+    """Make SIGTERM raise ``exc_type`` and SIGINT ``KeyboardInterrupt`` in the main thread
+    (clean-ups run as for Ctrl-C), noting each signal in ``seen``; return the function that
+    restores the previous handlers."""
     import signal
     import threading
 
@@ -760,10 +767,20 @@ def _on_sigterm_raise(exc_type):
         return lambda: None
 
     def handler(signum, frame):
-        raise exc_type()
+        seen.append(int(signum))
+        raise exc_type() if signum == signal.SIGTERM else KeyboardInterrupt()
 
-    old = signal.signal(signal.SIGTERM, handler)
-    return lambda: signal.signal(signal.SIGTERM, old)
+    old_term = signal.signal(signal.SIGTERM, handler)
+    old_int = None
+    if signal.getsignal(signal.SIGINT) is signal.default_int_handler:
+        old_int = signal.signal(signal.SIGINT, handler)
+
+    def restore():
+        signal.signal(signal.SIGTERM, old_term)
+        if old_int is not None:
+            signal.signal(signal.SIGINT, old_int)
+
+    return restore
 
 
 def _internal_error(e):  # pragma: no cover - internal errors
