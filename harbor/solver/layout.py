@@ -29,13 +29,14 @@ from harbor.geometry.visibility import (diffracting_edges, layout_segments, ray_
                                         segment_blocked)
 from harbor.solver.kernels.gap import AUTO_EXACT_BELOW, auto_method, gap
 from harbor.solver.kernels.sommerfeld import sommerfeld_terms
+from harbor.solver.kernels.wedge import wedge_diffracted
 
 #: Arms whose far end is not rooted still count as "long" for the classic entrance when
 #: their end segment is at least this many wavelengths long.
 LONG_ARM_WAVELENGTHS = 3.0
-#: Bends that turn an arm by at least this much (degrees) diffract; gentler bends are
-#: treated as straight (their half-plane terms made the lee worse, docs/accuracy.md).
-BEND_DIFFRACTION_DEG = 45.0
+#: Kept for compatibility: every bend now diffracts as a wedge (see :func:`general_field`);
+#: before, only bends of at least this turn (degrees) had half-plane terms.
+BEND_DIFFRACTION_DEG = 0.0
 #: An arm whose width across the direction of travel is below this many wavelengths is
 #: left out for that direction (seen edge-on, see :func:`edge_on_arms`).
 EDGE_ON_WIDTH = 0.5
@@ -218,6 +219,38 @@ def head_visibility(layout, px, py, segments=None):
             for v, _ in diffracting_edges(layout)]
 
 
+def bend_sector(dirs, up_angle):
+    """The water sector of a bend that the waves strike.
+
+    Parameters
+    ----------
+    dirs : tuple of numpy.ndarray
+        Unit vectors from the bend along its two segments.
+    up_angle : float
+        Direction the waves come from (rad, math angle).
+
+    Returns
+    -------
+    face0 : float
+        Math angle (rad) of the face the sector starts from (counter-clockwise).
+    water : float
+        Angle of the sector (rad), pi plus or minus the bend's turn.
+    phi0 : float
+        Direction the waves come from, counter-clockwise from ``face0`` (rad), kept a
+        hair inside the sector.
+    """
+    a0 = float(np.arctan2(dirs[0][1], dirs[0][0]))
+    a1 = float(np.arctan2(dirs[1][1], dirs[1][0]))
+    w = np.mod(a1 - a0, 2 * np.pi)
+    p = np.mod(up_angle - a0, 2 * np.pi)
+    if p <= w:
+        face0, water, phi0 = a0, w, p
+    else:
+        face0, water, phi0 = a1, 2 * np.pi - w, np.mod(up_angle - a1, 2 * np.pi)
+    tiny = np.radians(GRAZING_DEG)
+    return face0, float(water), float(np.clip(phi0, tiny, water - tiny))
+
+
 def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None):
     r"""Geometric optics of the whole layout plus each lit head's diffracted wave.
 
@@ -252,17 +285,18 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
           + \sum_{\text{lit edges}} \chi_h\, e^{ik\,\mathbf d\cdot\mathbf h}\, D_h(\mathbf x)
 
     with :math:`\chi` the visibility indicators, :math:`\mathbf d_r` the mirror image of
-    the travel direction in a face and :math:`D_h` the diffracted part of Sommerfeld's
-    solution for the edge h (:func:`harbor.solver.kernels.sommerfeld.sommerfeld_terms`).
-    The edges are the free heads (half-plane along the end segment) and the bends of an
-    arm that turn it by at least :data:`BEND_DIFFRACTION_DEG` and cast a shadow boundary,
-    i.e. whose two segments lie on the same side of the ray through the bend (half-plane
-    along the more up-wave segment, whose face is lit).
-    A bend whose two faces are both struck casts no shadow; there only the
-    reflection-boundary part of each face's half-plane solution is added. Either way the
-    jumps of the geometric field across the bend's shadow and reflection boundaries are
-    removed exactly; a wedge solution would be exact there, so fields within a wavelength
-    of a sharp bend are approximate (the accuracy table in docs/ measures it).
+    the travel direction in a face and :math:`D_h` the diffracted wave of the edge h. A
+    free head diffracts as Sommerfeld's half-plane along its end segment
+    (:func:`harbor.solver.kernels.sommerfeld.sommerfeld_terms`). Every bend, of any
+    angle, diffracts as the wedge its two segments form on the side the waves strike
+    (water angle :math:`\pi \pm \tau` for a turn :math:`\tau`;
+    :func:`harbor.solver.kernels.wedge.wedge_diffracted`), so that the shadow boundary and
+    both faces' reflection boundaries that start at the bend are smoothed and the total
+    field is continuous across them. A diffracted wave reaches only water it can reach:
+    points in line of sight of the edge (no arm or land in between) and, for a bend,
+    inside the struck sector (never through the arm to its other side), so a closed basin
+    receives nothing. Edges not reached by the incident wave do not diffract (no
+    multiple diffraction), and reflected waves are not diffracted again.
 
     References
     ----------
@@ -271,6 +305,9 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
        236-253.
     .. [2] Keller, J. B. (1962). Geometrical theory of diffraction. *Journal of the
        Optical Society of America*, 52(2), 116-130.
+    .. [3] Kouyoumjian, R. G., & Pathak, P. H. (1974). A uniform geometrical theory of
+       diffraction for an edge in a perfectly conducting surface. *Proceedings of the
+       IEEE*, 62(11), 1448-1461.
     """
     d0 = np.array([np.cos(alpha), np.sin(alpha)])
     edge_on = edge_on_arms(layout, d0, wavelength)
@@ -330,26 +367,12 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
         phase = np.dot(d, a) + (px[idx] - a[0]) * dr[0] + (py[idx] - a[1]) * dr[1]
         u[idx] += np.exp(1j * k * phase)
 
-    # diffraction by each lit head, and by each bend that casts a shadow boundary
+    # diffraction by each lit head (Sommerfeld's half-plane along its end segment) and by
+    # each lit bend (the wedge formed by its two segments), each only into the water it
+    # can reach: in line of sight and, for a bend, inside the sector the waves strike
     n_lit = 0
-    left = np.array([-d[1], d[0]])
+    e_up = float(np.arctan2(up[1], up[0]))
     for ei, (tip, dirs) in enumerate(diffracting_edges(layout)):
-        if len(dirs) == 2:
-            # gentle bends: the straight-arm treatment is closer to the full-field
-            # solution than half-plane terms at the bend (docs/accuracy.md, sect. 3)
-            if np.dot(dirs[0], dirs[1]) < -np.cos(np.radians(BEND_DIFFRACTION_DEG)):
-                continue
-            an, bn = float(np.dot(dirs[0], left)), float(np.dot(dirs[1], left))
-            if an * bn > 0:
-                # a shadow boundary starts at the bend: half-plane along the more up-wave
-                # segment, whose face is the lit one
-                planes = [(dirs[0] if np.dot(dirs[0], d) < np.dot(dirs[1], d) else dirs[1], "both")]
-            else:
-                # the wave meets the bend from outside on both faces: only the reflection
-                # boundaries need smoothing, one half-plane per face
-                planes = [(dirs[0], "reflection"), (dirs[1], "reflection")]
-        else:
-            planes = [(dirs[0], "both")]
         if ray_blocked(np.array([tip[0]]), np.array([tip[1]]), up, segments,
                        open_ends=open_ends)[0]:
             continue
@@ -361,16 +384,26 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
             seen = ~segment_blocked(px, py, tip[0], tip[1], segments)
         if not np.any(seen):
             continue
-        for inward, part in planes:
+        at_tip = np.exp(1j * k * np.dot(d, tip))
+        if len(dirs) == 1:
+            inward = dirs[0]
             ey = np.array([-inward[1], inward[0]])
             if np.dot(ey, d) < 0:
                 ey = -ey
             local = np.arctan2(np.dot(d, ey), np.dot(d, inward))
             local = np.clip(local, np.radians(GRAZING_DEG), np.pi - np.radians(GRAZING_DEG))
             xl, yl = _local(px[seen], py[seen], tip, inward, ey)
-            _, _, (d1, d2) = sommerfeld_terms(xl, yl, k, local, split=True)
-            diff = d1 + d2 if part == "both" else d2
-            u[seen] += np.exp(1j * k * np.dot(d, tip)) * diff
+            _, _, diff = sommerfeld_terms(xl, yl, k, local)
+            u[seen] += at_tip * diff
+            continue
+        face0, water, phi0 = bend_sector(dirs, e_up)
+        idx = np.nonzero(seen)[0]
+        rx, ry = px[idx] - tip[0], py[idx] - tip[1]
+        phi = np.mod(np.arctan2(ry, rx) - face0, 2 * np.pi)
+        inside = phi <= water + 1e-12
+        idx, phi = idx[inside], phi[inside]
+        r = np.hypot(rx[inside], ry[inside])
+        u[idx] += at_tip * wedge_diffracted(r, phi, phi0, water / np.pi, k)
     return u.reshape(shape), n_lit
 
 
