@@ -112,6 +112,11 @@ def cmd_check(args):
           f"polygon(s), {len(sc.seas)} sea state(s), {len(sc.points)} point(s)")
     print(f"  CRS {site.crs_code}; meridian convergence at the site {site.convergence_deg:+.3f} deg "
           f"(grid bearing = true bearing - convergence); depth {site.depth:g} m")
+    from harbor.geometry.entrance import entrance_width
+
+    width = entrance_width(sc.layout)
+    if width is not None:
+        print(f"  entrance width {width:.1f} m (narrowest water passage between the structures)")
     if sc.grid is not None:
         from harbor.solver.assemble import grid_coordinates
 
@@ -432,7 +437,7 @@ def cmd_climate(args):
     int
         0; user mistakes raise :class:`harbor.errors.InputError`.
     """
-    from harbor.geometry.entrance import nearest_heads
+    from harbor.geometry.entrance import entrance_width
     from harbor.study.climate import (climate_downtime, downtime_text, percent_warning,
                                       read_climate, write_climate)
     from harbor.study.sweep import MoveRejected, move_head
@@ -458,10 +463,10 @@ def cmd_climate(args):
         title = f"Berth downtime, head of '{args.arm}' moved {args.move:+g} m " \
                 f"(entrance {width:.1f} m)"
     else:
-        ent = nearest_heads(sc.layout)
-        if ent is not None:
-            print(f"entrance between the nearest heads: {ent.width:.1f} m")
-            title = f"Berth downtime by wave direction (entrance {ent.width:.1f} m)"
+        width = entrance_width(sc.layout)
+        if width is not None:
+            print(f"entrance width (narrowest passage): {width:.1f} m")
+            title = f"Berth downtime by wave direction (entrance {width:.1f} m)"
     res = climate_downtime(sc, table, method=args.method, workers=args.workers,
                            progress=_progress_printer(args.quiet))
     written = write_climate(res, args.out, title=title)

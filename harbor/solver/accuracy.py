@@ -183,8 +183,9 @@ def accuracy_warnings(layout, wavelength, directions=()):
     shelter afforded by breakwaters. Philosophical Transactions of the Royal Society of
     London A 244(882), 236-253.
     """
-    from harbor.solver.layout import classic_entrance
+    from harbor.solver.layout import active_layout, classic_entrance
 
+    layout, _ = active_layout(layout)       # arms wholly on land do nothing
     L = float(wavelength)
     if not (np.isfinite(L) and L > 0):
         raise InputError(f"wavelength must be a positive length in m, got {wavelength!r}",

@@ -24,7 +24,7 @@ import numpy as np
 
 from harbor.cautions import Notice
 from harbor.geometry.entrance import basin_mask, nearest_heads
-from harbor.geometry.layout import Layout
+from harbor.geometry.layout import JOIN_TOLERANCE, Layout, wet_arms
 from harbor.geometry.visibility import (diffracting_edges, layout_segments, ray_blocked,
                                         segment_blocked)
 from harbor.solver.kernels.gap import AUTO_EXACT_BELOW, auto_method, gap
@@ -60,6 +60,34 @@ class FieldInfo:
     lit_heads: int = 0
 
 
+_WET = {}
+
+
+def active_layout(layout):
+    """The layout the methods solve: without the arms that lie wholly on land.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+
+    Returns
+    -------
+    layout : harbor.geometry.layout.Layout
+        ``layout`` itself when every arm has a part in the water.
+    dry : list of str
+        Names of the arms left out (:func:`harbor.geometry.layout.wet_arms`).
+    """
+    key = id(layout)
+    hit = _WET.get(key)
+    if hit is not None and hit[0] is layout:
+        return hit[1], hit[2]
+    wet, dry = wet_arms(layout)
+    if len(_WET) > 16:
+        _WET.clear()
+    _WET[key] = (layout, wet, dry)
+    return wet, dry
+
+
 def classic_entrance(layout, wavelength):
     """The layout's classic entrance for this wavelength, or None.
 
@@ -72,20 +100,36 @@ def classic_entrance(layout, wavelength):
     Returns
     -------
     harbor.geometry.entrance.Entrance or None
-        Returned when the layout has exactly two arms, each with one free head, the heads
-        facing each other with end segments collinear within 2 degrees, each arm rooted
-        at its far end or with an end segment of at least
-        :data:`LONG_ARM_WAVELENGTHS` wavelengths.
+        Decided from the heads that form the entrance, not from the number of arms:
+        the closest pair of free heads on different arms
+        (:func:`harbor.geometry.entrance.nearest_heads`) of the arms that lie in the
+        water (:func:`active_layout`), when each of the two arms has that one free head,
+        the heads face each other with end segments collinear within 2 degrees, each arm
+        is rooted at its far end or has an end segment of at least
+        :data:`LONG_ARM_WAVELENGTHS` wavelengths, and every other arm in the water has
+        no free head and no vertex inside the basin (a seawall elsewhere on the shore
+        does not change the method). The arm indices of the result refer to
+        :func:`active_layout`'s layout.
     """
-    if len(layout.arms) != 2:
-        return None
-    if any((not a.rooted_start) + (not a.rooted_end) != 1 for a in layout.arms):
-        return None
+    layout, _ = active_layout(layout)
     ent = nearest_heads(layout)
     if ent is None or not ent.collinear:
         return None
+    for i in ent.arms:
+        a = layout.arms[i]
+        if (not a.rooted_start) + (not a.rooted_end) != 1:
+            return None
     for rooted, length in zip(ent.rooted_far_ends, ent.end_lengths):
         if not rooted and length < LONG_ARM_WAVELENGTHS * wavelength:
+            return None
+    others = [a for i, a in enumerate(layout.arms) if i not in ent.arms]
+    if others:
+        if any(not (a.rooted_start and a.rooted_end) for a in others):
+            return None
+        pts = np.concatenate([np.asarray(a.line, float) for a in others]
+                             + [0.5 * (np.asarray(a.line, float)[1:]
+                                       + np.asarray(a.line, float)[:-1]) for a in others])
+        if np.any(basin_mask(layout, ent, pts[:, 0], pts[:, 1])):
             return None
     return ent
 
@@ -309,6 +353,9 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
        diffraction for an edge in a perfectly conducting surface. *Proceedings of the
        IEEE*, 62(11), 1448-1461.
     """
+    wet, _ = active_layout(layout)
+    if wet is not layout:
+        layout, segments, visible = wet, None, None
     d0 = np.array([np.cos(alpha), np.sin(alpha)])
     edge_on = edge_on_arms(layout, d0, wavelength)
     if edge_on:
@@ -431,6 +478,7 @@ def layout_field(layout, px, py, wavelength, alpha, method="auto"):
     info : FieldInfo
     """
     px, py = np.broadcast_arrays(np.asarray(px, float), np.asarray(py, float))
+    layout, _ = active_layout(layout)
     if method != "general":
         ent = classic_entrance(layout, wavelength)
         if ent is not None:
@@ -466,6 +514,24 @@ def layout_warnings(layout, wavelength, point_xy=()):
     list of harbor.cautions.Notice
     """
     out = []
+    for j in getattr(layout, "joins", ()):
+        what = "its start" if j.end == "start" else "its end"
+        if j.joined:
+            out.append(Notice(
+                "ends-joined", f"arm '{j.arm}': {what} was {100 * j.distance:.0f} cm from "
+                f"{j.target} and has been joined to it (ends within "
+                f"{100 * JOIN_TOLERANCE:.0f} cm are joined)", level="note"))
+        else:
+            out.append(Notice(
+                "near-miss", f"arm '{j.arm}': {what} is {j.distance:.2f} m from {j.target} "
+                f"but not joined (ends are joined within {100 * JOIN_TOLERANCE:.0f} cm): "
+                f"did you mean to join them? As drawn, the {j.distance:.2f} m opening is "
+                f"solved as an entrance"))
+    layout, dry = active_layout(layout)
+    for name in dry:
+        out.append(Notice(
+            "arm-on-land", f"arm '{name}' lies wholly on land (buried in it or along its "
+            f"edge): it does nothing to the waves and is left out", level="note"))
     ent = nearest_heads(layout)
     if ent is not None and classic_entrance(layout, wavelength) is None:
         ratio = ent.width / wavelength

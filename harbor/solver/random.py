@@ -17,6 +17,7 @@ from harbor.solver.layout import (
     METHOD_GAP_EXACT,
     METHOD_GAP_SUPERPOSITION,
     METHOD_GENERAL,
+    active_layout,
     classic_entrance,
     entrance_frames,
     general_field,
@@ -107,6 +108,7 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
     angle = np.asarray(components.angle)
     e0 = np.zeros(xf.size)
     e2 = np.zeros(xf.size)
+    layout, _ = active_layout(layout)      # arms wholly on land do nothing
     segments = layout_segments(layout)
     visible_all = head_visibility(layout, xf, yf, segments)
     bands = np.unique(freq)

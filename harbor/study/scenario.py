@@ -21,7 +21,7 @@ except ModuleNotFoundError:  # pragma: no cover - Python 3.10
     import tomli as _toml
 
 from harbor.errors import InputError
-from harbor.geometry.layout import Arm, Land, Layout, Point
+from harbor.geometry.layout import Arm, Land, Layout, Point, join_ends
 from harbor.geometry.site import Site, lonlat_problem, parse_crs
 
 
@@ -309,7 +309,10 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
     -----
     - An arm end inside or on a land polygon, or on another arm (a junction), is rooted
       and does not diffract; the tolerance is max(0.01 m, 1e-6 × layout size).
-      ``rooted`` ("start", "end", "both", "none") overrides.
+      ``rooted`` ("start", "end", "both", "none") overrides. An end within
+      :data:`harbor.geometry.layout.JOIN_TOLERANCE` (0.25 m) of another arm or of land
+      is first moved onto it (:func:`harbor.geometry.layout.join_ends`), and the join is
+      reported by ``harbor check``, as is an end within 2 m that is not joined.
     - Default grid bounds: the box around arms and points padded on every side by
       max(20 % of its larger side, 50 m); land is left out so that a large shore
       polygon does not inflate the grid.
@@ -513,6 +516,10 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
 
     land_all = (shapely.union_all([ld.outline for ld in lands]) if lands
                 else shapely.Polygon())
+    # ends that miss another arm or land by centimetres are joined to it (the rule and
+    # its tolerance live in the geometry layer); `check` reports every join
+    snapped, joins = join_ends([a for _, _, a, _ in lines], [n for _, n, _, _ in lines], lands)
+    lines = [(w, n, a, shapely.LineString(a)) for (w, n, _, _), a in zip(lines, snapped)]
     arms = []
     for k, ((where, name, a, ls), (_, _, _, rooted)) in enumerate(zip(lines, arms_w)):
         others = [o for m, (_, _, _, o) in enumerate(lines) if m != k]
@@ -529,7 +536,7 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
         else:
             rs, re = rooted in ("start", "both"), rooted in ("end", "both")
         arms.append(Arm(name=name, line=a, rooted_start=bool(rs), rooted_end=bool(re)))
-    layout = Layout(arms=tuple(arms), lands=tuple(lands))
+    layout = Layout(arms=tuple(arms), lands=tuple(lands), joins=tuple(joins))
 
     all_arms = shapely.MultiLineString([ls for _, _, _, ls in lines])
     points = []
