@@ -206,6 +206,66 @@ def gap_field(entrance, px, py, wavelength, alpha, method="auto"):
     return phase0 * gap(x, y, wavelength, local_dir, entrance.width, method=method), method
 
 
+def entrance_blend(layout, entrance, px, py, wavelength, segments=None):
+    r"""Weight of the classic entrance's gap solution on the sea side of the entrance.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+    entrance : harbor.geometry.entrance.Entrance
+        A classic entrance (:func:`classic_entrance`).
+    px, py : numpy.ndarray
+        Points (m, work frame) outside the basin.
+    wavelength : float
+        L (m).
+    segments : tuple, optional
+        Output of :func:`harbor.geometry.visibility.layout_segments`.
+
+    Returns
+    -------
+    numpy.ndarray of float
+        w in [0, 1]: the field there is ``w u_gap + (1 - w) u_general``.
+
+    Notes
+    -----
+    The gap solution is continuous through the aperture (it solves both sides of the
+    wall), the general method is not the same field, so a switch on the entrance line
+    would leave a step (0.2-0.5 in K' on the demo). On the sea side, within
+    :math:`\rho_1 = B/2 + \min(E, L)/4` of the entrance centre (E the shorter end
+    segment) the gap solution is used, beyond :math:`\rho_2 = B/2 + \min(E, 2L)` the
+    general method, and between them the smooth step
+    :math:`w = s^2(3 - 2s)`, :math:`s = (\rho_2 - \rho)/(\rho_2 - \rho_1)`: the
+    hand-over stays over the straight, collinear end segments where both describe the
+    same wall, and the field is continuous everywhere. Points hidden from the entrance
+    centre by an arm or land get w = 0.
+    """
+    from harbor.geometry.visibility import layout_segments, segment_blocked
+
+    px = np.asarray(px, float)
+    py = np.asarray(py, float)
+    w = np.zeros(px.shape)
+    if np.allclose(entrance.basin_normal, 0) or px.size == 0:
+        return w
+    c = entrance.center
+    L = float(wavelength)
+    half = 0.5 * entrance.width
+    e = float(min(entrance.end_lengths))
+    r1 = half + 0.25 * min(e, L)
+    r2 = half + min(e, 2.0 * L)
+    rho = np.hypot(px - c[0], py - c[1])
+    side = (px - c[0]) * entrance.basin_normal[0] + (py - c[1]) * entrance.basin_normal[1]
+    near = (rho < r2) & (side <= 0)
+    if not np.any(near):
+        return w
+    if segments is None:
+        segments = layout_segments(layout)
+    idx = np.nonzero(near)[0]
+    idx = idx[~segment_blocked(px[idx], py[idx], c[0], c[1], segments[0])]
+    sgap = np.clip((r2 - rho[idx]) / (r2 - r1), 0.0, 1.0)
+    w[idx] = sgap * sgap * (3.0 - 2.0 * sgap)
+    return w
+
+
 def edge_on_arms(layout, direction, wavelength):
     """Indices of the arms that the waves see (nearly) edge-on.
 
@@ -490,8 +550,17 @@ def layout_field(layout, px, py, wavelength, alpha, method="auto"):
                 u = np.empty(px.shape, complex)
                 u[inside], used = got
                 if np.any(~inside):
-                    u[~inside], _ = general_field(layout, px[~inside], py[~inside], wavelength,
-                                                  alpha, segments=segments)
+                    ox, oy = px[~inside], py[~inside]
+                    uo, _ = general_field(layout, ox, oy, wavelength, alpha, segments=segments)
+                    # a smooth hand-over to the gap solution near the entrance, seaward:
+                    # no step on the entrance line
+                    w = entrance_blend(layout, ent, ox, oy, wavelength, segments)
+                    zone = w > 0
+                    if np.any(zone):
+                        ug, _ = gap_field(ent, ox[zone], oy[zone], wavelength, alpha,
+                                          method=used)
+                        uo[zone] = w[zone] * ug + (1.0 - w[zone]) * uo[zone]
+                    u[~inside] = uo
                 name = METHOD_GAP_EXACT if used == "exact" else METHOD_GAP_SUPERPOSITION
                 return u, FieldInfo(method=name, lit_heads=2)
     u, n_lit = general_field(layout, px, py, wavelength, alpha)
