@@ -240,16 +240,18 @@ def join_ends(lines, names, lands=(), tolerance=JOIN_TOLERANCE, near_miss=NEAR_M
                     de = np.hypot(*(ends - p).T)
                     if de.min() <= tolerance:
                         target = ends[int(np.argmin(de))].copy()
+                        theirs = (j, "start" if int(np.argmin(de)) == 0 else "end")
                     else:
                         target = np.asarray(other.interpolate(other.project(q)).coords[0])
-                    best = (dist, f"arm '{names[j]}'", target)
+                        theirs = None
+                    best = (dist, f"arm '{names[j]}'", target, theirs)
             land_best = None
             for name, poly in land_geoms:
                 dist = float(poly.distance(q))
                 if land_best is None or dist < land_best[0]:
                     b = poly.exterior
                     target = np.asarray(b.interpolate(b.project(q)).coords[0])
-                    land_best = (dist, f"land '{name}'", target)
+                    land_best = (dist, f"land '{name}'", target, None)
             cands = [c for c in (best, land_best) if c is not None]
             if not cands:
                 continue
@@ -258,10 +260,14 @@ def join_ends(lines, names, lands=(), tolerance=JOIN_TOLERANCE, near_miss=NEAR_M
             near = min(cands, key=lambda c: c[0])
             if best is not None and best[0] <= tolerance:
                 near = best
-            dist, target_name, target = near
+            dist, target_name, target, theirs = near
             if dist <= tolerance:
                 out[k][idx] = target
                 joins.append(Join(names[k], end, target_name, dist, True))
+                if theirs is not None:
+                    # two ends meeting: the other end is joined as well
+                    joins.append(Join(names[theirs[0]], theirs[1], f"arm '{names[k]}'",
+                                      dist, True))
             elif dist <= near_miss:
                 joins.append(Join(names[k], end, target_name, dist, False))
     return out, joins

@@ -355,7 +355,8 @@ def bend_sector(dirs, up_angle):
     return face0, float(water), float(np.clip(phi0, tiny, water - tiny))
 
 
-def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None):
+def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None,
+                  higher_order=True):
     r"""Geometric optics of the whole layout plus each lit head's diffracted wave.
 
     Parameters
@@ -371,6 +372,12 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
         Output of :func:`harbor.geometry.visibility.layout_segments` (to reuse).
     visible : list of numpy.ndarray, optional
         Output of :func:`head_visibility` for the same (flattened) points (to reuse).
+    higher_order : bool, optional
+        Include the second-order terms (double diffraction between edges, edges
+        diffracting the reflected waves, reflections of the edges' shadow waves) that
+        make the field continuous where one structure cuts another's waves. A random sea
+        leaves them out per component (default True): there the cut-offs of the many
+        directions fall in different places and average out, at a fraction of the cost.
 
     Returns
     -------
@@ -442,75 +449,225 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
 
     # first-order reflection from the seaward face of every arm segment
     is_arm = np.array([o.startswith("arm:") for o in owner], bool)
+    scale = max(float(np.max(np.abs(segments))) if len(segments) else 1.0, 1.0)
+
+    def beam(face, X, Y):
+        """Points of (X, Y) that the face's reflected wave reaches, and its phase there."""
+        si, a, b, n, dr = face
+        t = b - a
+        length2 = float(np.dot(t, t))
+        front = (X - a[0]) * n[0] + (Y - a[1]) * n[1]
+        cand = np.nonzero(front > 0)[0]
+        if cand.size == 0:
+            return cand, np.zeros(0)
+        back = front[cand] / np.dot(dr, n)
+        qx = X[cand] - back * dr[0]
+        qy = Y[cand] - back * dr[1]
+        sa = ((qx - a[0]) * t[0] + (qy - a[1]) * t[1]) / length2
+        on = (sa >= -1e-9) & (sa <= 1 + 1e-9)
+        idx, qx, qy = cand[on], qx[on], qy[on]
+        if idx.size == 0:
+            return idx, np.zeros(0)
+        skip = np.zeros(len(segments), bool)
+        skip[si] = True
+        ok = ~ray_blocked(qx, qy, up, segments, skip=skip, open_ends=open_ends)
+        ok &= ~segment_blocked(X[idx], Y[idx], qx, qy, segments, skip=skip)
+        idx = idx[ok]
+        phase = np.dot(d, a) + (X[idx] - a[0]) * dr[0] + (Y[idx] - a[1]) * dr[1]
+        return idx, phase
+
+    faces = []
     for si in np.nonzero(is_arm)[0]:
         a, b = segments[si]
         t = b - a
-        length = np.hypot(*t)
-        n = np.array([-t[1], t[0]]) / length
+        n = np.array([-t[1], t[0]]) / np.hypot(*t)
         if np.dot(n, d) > 0:
             n = -n                          # the face the waves strike
         dn = float(np.dot(d, n))
         if dn > -1e-12:
             continue
-        dr = d - 2 * dn * n
-        front = (px - a[0]) * n[0] + (py - a[1]) * n[1]
-        cand = front > 0
-        if not np.any(cand):
-            continue
-        qx_t = front[cand] / np.dot(dr, n)
-        qx = px[cand] - qx_t * dr[0]
-        qy = py[cand] - qx_t * dr[1]
-        s = ((qx - a[0]) * t[0] + (qy - a[1]) * t[1]) / length**2
-        on = (s >= -1e-9) & (s <= 1 + 1e-9)
-        if not np.any(on):
-            continue
-        idx = np.nonzero(cand)[0][on]
-        qx, qy = qx[on], qy[on]
-        skip = np.zeros(len(segments), bool)
-        skip[si] = True
-        ok = ~ray_blocked(qx, qy, up, segments, skip=skip, open_ends=open_ends)
-        ok &= ~segment_blocked(px[idx], py[idx], qx, qy, segments, skip=skip)
-        idx = idx[ok]
-        phase = np.dot(d, a) + (px[idx] - a[0]) * dr[0] + (py[idx] - a[1]) * dr[1]
+        face = (si, a, b, n, d - 2 * dn * n)
+        faces.append(face)
+        idx, phase = beam(face, px, py)
         u[idx] += np.exp(1j * k * phase)
+
+    def edge_wave(tip, dirs, dv, X, Y, parts):
+        """Diffracted wave of an edge for a plane wave travelling along dv (unit
+        amplitude at the tip) at points X, Y in its line of sight; zero outside the
+        struck sector of a bend."""
+        if len(dirs) == 1:
+            inward = dirs[0]
+            ey = np.array([-inward[1], inward[0]])
+            if np.dot(ey, dv) < 0:
+                ey = -ey
+            local = np.arctan2(np.dot(dv, ey), np.dot(dv, inward))
+            local = np.clip(local, np.radians(GRAZING_DEG), np.pi - np.radians(GRAZING_DEG))
+            xl, yl = _local(X, Y, tip, inward, ey)
+            _, _, (d1, d2) = sommerfeld_terms(xl, yl, k, local, split=True)
+            return d1 + d2 if parts == "all" else d1
+        face0, water, phi0 = bend_sector(dirs, float(np.arctan2(-dv[1], -dv[0])))
+        rx, ry = X - tip[0], Y - tip[1]
+        phi = np.mod(np.arctan2(ry, rx) - face0, 2 * np.pi)
+        inside = phi <= water + 1e-12
+        out = np.zeros(X.shape, complex)
+        out[inside] = wedge_diffracted(np.hypot(rx[inside], ry[inside]), phi[inside], phi0,
+                                       water / np.pi, k, parts=parts)
+        return out
+
+    def sector_wave(tip, face0, water, phi0, sign, X, Y, s_src):
+        """Shadow part of the wedge wave at ``tip`` (faces at ``face0`` and ``face0 +
+        sign * water``) for a cylindrical wave from ``s_src`` away, arriving from
+        ``phi0`` (unit amplitude at the tip)."""
+        phi = np.mod(sign * (np.arctan2(Y - tip[1], X - tip[0]) - face0), 2 * np.pi)
+        inside = phi <= water + 1e-12
+        out = np.zeros(X.shape, complex)
+        r = np.hypot(X[inside] - tip[0], Y[inside] - tip[1])
+        out[inside] = wedge_diffracted(r, phi[inside], phi0, water / np.pi, k,
+                                       parts="shadow", source=s_src)
+        return out
+
+    def double_terms(tip, dirs, src):
+        """(probe point, face0, water, phi0, sign) for each way the cylindrical wave of
+        the edge at ``src`` meets the edge at ``tip``: a wave that runs along a face
+        into it meets it once per face side it runs on (a head: both; a bend: its
+        convex side only)."""
+        v = (src - tip) / np.hypot(*(src - tip))
+        toward = float(np.arctan2(v[1], v[0]))
+        tiny = np.radians(GRAZING_DEG)
+        hair = 1e-6 * scale
+        graze = [f for f in dirs if abs(f[0] * v[1] - f[1] * v[0]) < 1e-9 and np.dot(f, v) > 0]
+        if not graze:
+            if len(dirs) == 1:
+                face0, water = float(np.arctan2(dirs[0][1], dirs[0][0])), 2 * np.pi
+                phi0 = np.mod(toward - face0, 2 * np.pi)
+            else:
+                face0, water, phi0 = bend_sector(dirs, toward)
+            return [(tip + hair * v, face0, water, float(np.clip(phi0, tiny, water - tiny)),
+                     1.0)]
+        f = graze[0]
+        face0 = float(np.arctan2(f[1], f[0]))
+        left = np.array([-f[1], f[0]])
+        if len(dirs) == 1:
+            return [(tip + hair * (left + 1e-3 * f), face0, 2 * np.pi, tiny, 1.0),
+                    (tip + hair * (-left + 1e-3 * f), face0, 2 * np.pi, tiny, -1.0)]
+        other = dirs[1] if f is dirs[0] else dirs[0]
+        w = np.mod(float(np.arctan2(other[1], other[0])) - face0, 2 * np.pi)
+        # the convex side: counter-clockwise from f when the other segment is more than
+        # pi away counter-clockwise, else clockwise
+        if w > np.pi + 1e-9:
+            return [(tip + hair * (left + 1e-3 * f), face0, w, tiny, 1.0)]
+        if w < np.pi - 1e-9:
+            return [(tip + hair * (-left + 1e-3 * f), face0, 2 * np.pi - w, tiny, -1.0)]
+        return []
+
+    def on_face(tip, face):
+        _, a, b, _, _ = face
+        return min(np.hypot(*(tip - a)), np.hypot(*(tip - b))) <= 1e-9 * scale
 
     # diffraction by each lit head (Sommerfeld's half-plane along its end segment) and by
     # each lit bend (the wedge formed by its two segments), each only into the water it
     # can reach: in line of sight and, for a bend, inside the sector the waves strike
     n_lit = 0
-    e_up = float(np.arctan2(up[1], up[0]))
-    for ei, (tip, dirs) in enumerate(diffracting_edges(layout)):
+    edges = diffracting_edges(layout)
+    seen_of = {}
+
+    def seen(ei):
+        if ei not in seen_of:
+            tip = edges[ei][0]
+            seen_of[ei] = (visible[ei] if visible is not None
+                           else ~segment_blocked(px, py, tip[0], tip[1], segments))
+        return seen_of[ei]
+
+    lit = []
+    for ei, (tip, dirs) in enumerate(edges):
         if ray_blocked(np.array([tip[0]]), np.array([tip[1]]), up, segments,
                        open_ends=open_ends)[0]:
             continue
         if len(dirs) == 1:
             n_lit += 1
-        if visible is not None:
-            seen = visible[ei]
-        else:
-            seen = ~segment_blocked(px, py, tip[0], tip[1], segments)
-        if not np.any(seen):
+        lit.append(ei)
+        idx = np.nonzero(seen(ei))[0]
+        if idx.size:
+            u[idx] += np.exp(1j * k * np.dot(d, tip)) * edge_wave(tip, dirs, d, px[idx],
+                                                                   py[idx], "all")
+
+    if not higher_order:
+        return u.reshape(shape), n_lit
+
+    # double diffraction: a lit edge's diffracted wave, cut off by another edge in its
+    # line of sight, is diffracted there (shadow part; a head's wave running along its
+    # own arm into a bend is the grazing case)
+    ex_all = np.array([e[0] for e in edges]) if edges else np.zeros((0, 2))
+    for hi in lit:
+        tip_h, dirs_h = edges[hi]
+        if ex_all.size == 0:
+            break
+        view = ~segment_blocked(ex_all[:, 0], ex_all[:, 1], tip_h[0], tip_h[1], segments)
+        for oi in np.nonzero(view)[0]:
+            if oi == hi:
+                continue
+            tip_o, dirs_o = edges[oi]
+            if np.hypot(*(tip_o - tip_h)) <= 1e-9 * scale:
+                continue
+            s_src = float(np.hypot(*(tip_o - tip_h)))
+            idx = np.nonzero(seen(oi))[0]
+            if idx.size == 0:
+                continue
+            for probe, face0, water, phi0, sign in double_terms(tip_o, dirs_o, tip_h):
+                # the primary wave of edge h where it meets edge o, a hair off the arm on
+                # the side it runs along
+                amp = np.exp(1j * k * np.dot(d, tip_h)) * edge_wave(
+                    tip_h, dirs_h, d, probe[None, 0], probe[None, 1], "all")[0]
+                if abs(amp) < 1e-9:
+                    continue
+                u[idx] += amp * sector_wave(tip_o, face0, water, phi0, sign, px[idx],
+                                            py[idx], s_src)
+
+    # second-order terms that keep the field continuous where an edge cuts a reflected
+    # wave: (a) an edge in a face's reflected beam diffracts that wave (shadow part);
+    # (b) a lit edge's shadow, which cuts the incident wave on its way to a face, is
+    # mirrored in the face (the face's image of the edge's shadow-smoothing wave)
+    for face in faces:
+        si, a, b, n, dr = face
+        for ei, (tip, dirs) in enumerate(edges):
+            if on_face(tip, face):
+                continue
+            hit, ph = beam(face, tip[None, 0].copy(), tip[None, 1].copy())
+            if hit.size == 0:
+                continue
+            idx = np.nonzero(seen(ei))[0]
+            if idx.size:
+                u[idx] += np.exp(1j * k * ph[0]) * edge_wave(tip, dirs, dr, px[idx],
+                                                             py[idx], "shadow")
+        front = (px - a[0]) * n[0] + (py - a[1]) * n[1]
+        cand = np.nonzero(front > 0)[0]
+        if cand.size == 0:
             continue
-        at_tip = np.exp(1j * k * np.dot(d, tip))
-        if len(dirs) == 1:
-            inward = dirs[0]
-            ey = np.array([-inward[1], inward[0]])
-            if np.dot(ey, d) < 0:
-                ey = -ey
-            local = np.arctan2(np.dot(d, ey), np.dot(d, inward))
-            local = np.clip(local, np.radians(GRAZING_DEG), np.pi - np.radians(GRAZING_DEG))
-            xl, yl = _local(px[seen], py[seen], tip, inward, ey)
-            _, _, diff = sommerfeld_terms(xl, yl, k, local)
-            u[seen] += at_tip * diff
-            continue
-        face0, water, phi0 = bend_sector(dirs, e_up)
-        idx = np.nonzero(seen)[0]
-        rx, ry = px[idx] - tip[0], py[idx] - tip[1]
-        phi = np.mod(np.arctan2(ry, rx) - face0, 2 * np.pi)
-        inside = phi <= water + 1e-12
-        idx, phi = idx[inside], phi[inside]
-        r = np.hypot(rx[inside], ry[inside])
-        u[idx] += at_tip * wedge_diffracted(r, phi, phi0, water / np.pi, k)
+        t = b - a
+        length2 = float(np.dot(t, t))
+        skip = np.zeros(len(segments), bool)
+        skip[si] = True
+        for ei in lit:
+            tip, dirs = edges[ei]
+            fh = float(np.dot(tip - a, n))
+            if fh <= 1e-9 * scale or on_face(tip, face):
+                continue
+            mx = px[cand] - 2 * front[cand] * n[0]
+            my = py[cand] - 2 * front[cand] * n[1]
+            w = fh / (fh + front[cand])
+            qx = tip[0] + w * (mx - tip[0])
+            qy = tip[1] + w * (my - tip[1])
+            sa = ((qx - a[0]) * t[0] + (qy - a[1]) * t[1]) / length2
+            on = (sa >= -1e-9) & (sa <= 1 + 1e-9)
+            if not np.any(on):
+                continue
+            idx, mx, my, qx, qy = cand[on], mx[on], my[on], qx[on], qy[on]
+            ok = ~segment_blocked(qx, qy, tip[0], tip[1], segments, skip=skip)
+            ok &= ~segment_blocked(px[idx], py[idx], qx, qy, segments, skip=skip)
+            if not np.any(ok):
+                continue
+            u[idx[ok]] += np.exp(1j * k * np.dot(d, tip)) * edge_wave(
+                tip, dirs, d, mx[ok], my[ok], "shadow")
     return u.reshape(shape), n_lit
 
 

@@ -183,7 +183,8 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
                     vis_out.clear()
                     vis_out[key] = [v[outside] for v in visible_all]
                 u, _ = general_field(layout, xf[outside], yf[outside], L, k_alpha[j],
-                                     segments=segments, visible=vis_out[key])
+                                     segments=segments, visible=vis_out[key],
+                                     higher_order=False)
                 if (key, L) not in blend:
                     blend.clear()
                     blend[(key, L)] = entrance_blend(layout, ent, xf[outside], yf[outside],
@@ -202,7 +203,7 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
                 e2[outside] += w[j] * f * f * p
                 continue
             u, n_lit = general_field(layout, xf, yf, L, k_alpha[j], segments=segments,
-                                     visible=visible_all)
+                                     visible=visible_all, higher_order=False)
             p = u.real**2 + u.imag**2
             e0 += w[j] * p
             e2 += w[j] * f * f * p

@@ -535,6 +535,9 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
             rs, re = anchored(a[0]), anchored(a[-1])
         else:
             rs, re = rooted in ("start", "both"), rooted in ("end", "both")
+        # a joined end is a junction, whatever `rooted` says
+        rs = rs or any(j.joined and j.arm == name and j.end == "start" for j in joins)
+        re = re or any(j.joined and j.arm == name and j.end == "end" for j in joins)
         arms.append(Arm(name=name, line=a, rooted_start=bool(rs), rooted_end=bool(re)))
     layout = Layout(arms=tuple(arms), lands=tuple(lands), joins=tuple(joins))
 

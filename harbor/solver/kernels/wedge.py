@@ -30,7 +30,7 @@ def _ratio(eps, n):
     return np.where(small, np.where(eps >= 0, n, -n), val)
 
 
-def wedge_diffracted(r, phi, phi0, n, k):
+def wedge_diffracted(r, phi, phi0, n, k, parts="all", source=None):
     r"""Diffracted wave of a rigid (Neumann) wedge's vertex under a plane wave.
 
     Parameters
@@ -46,6 +46,16 @@ def wedge_diffracted(r, phi, phi0, n, k):
         and 1 - tau/pi: the two sides of a bend turning by tau).
     k : float
         Wavenumber (rad/m).
+    parts : {"all", "shadow"}, optional
+        ``"shadow"``: only the terms of :math:`\beta = \varphi - \varphi'` (those that
+        smooth the incident wave's shadow boundary), for a wave whose reflection by the
+        wedge's faces is not part of the geometric field.
+    source : float, optional
+        For a cylindrical wave from a line source at this distance (m) from the vertex
+        (a wave diffracted by another edge), instead of a plane wave: the transition
+        functions take the distance parameter :math:`L = r s'/(r + s')` and the wave
+        spreads as :math:`\sqrt{s'/(r + s')}` (Kouyoumjian & Pathak 1974, eq. 27-28),
+        so the jump across each boundary is still the incident wave's.
 
     Returns
     -------
@@ -92,12 +102,19 @@ def wedge_diffracted(r, phi, phi0, n, k):
     phi = np.asarray(phi, float)
     r, phi = np.broadcast_arrays(r, phi)
     n = float(n)
-    root = np.sqrt(2.0 * k * r)
+    if source is None:
+        root = np.sqrt(2.0 * k * r)
+        factor = 1.0
+    else:
+        sp = float(source)
+        root = np.sqrt(2.0 * k * r * sp / (r + sp))
+        factor = np.sqrt(sp / (r + sp))
     total = np.zeros(r.shape, complex)
-    for beta in (phi - phi0, phi + phi0):
+    betas = (phi - phi0,) if parts == "shadow" else (phi - phi0, phi + phi0)
+    for beta in betas:
         for sign in (1.0, -1.0):
             big_n = np.round((beta + sign * np.pi) / (2.0 * np.pi * n))
             eps = np.pi + sign * beta - sign * 2.0 * np.pi * n * big_n
             # sign = -1: eps' = pi + 2 pi n N- - beta, the same form
             total += _ratio(eps, n) * _amplitude(root * np.abs(np.sin(0.5 * eps)))
-    return -np.exp(1j * k * r) * total / n
+    return -factor * np.exp(1j * k * r) * total / n
