@@ -274,9 +274,10 @@ def test_join_tolerance_edge(miss, joined):
 # --- 8. one entrance width ----------------------------------------------------------------------
 
 def _overlap(outer_to=3.0):
-    return _scenario([{"name": "outer", "line": [_w(-6, 0), _w(-6, 6), _w(outer_to, 6)]},
-                      {"name": "inner", "line": [_w(6, 0), _w(6, 4), _w(-2, 4)]}],
-                     points=((0, 2),))
+    sc = _scenario([{"name": "outer", "line": [_w(-6, 0), _w(-6, 6), _w(outer_to, 6)]},
+                    {"name": "inner", "line": [_w(6, 0), _w(6, 4), _w(-2, 4)]}],
+                   points=((0, 2),))
+    return sc
 
 
 def test_entrance_width_is_the_narrowest_passage(tmp_path, capsys):
@@ -318,3 +319,22 @@ at = {xy(0, 2)}
     assert main(["check", str(p)]) == 0
     out = capsys.readouterr().out
     assert f"entrance width {2 * L:.1f} m" in out
+
+
+# --- 3. where the method is outside its validity, the result says so point by point -------
+
+def test_validity_masks_mark_the_lee_of_overlapping_heads_only():
+    # overlapping heads with a 2 L channel: measured off by up to 1-2 in K' in their lee
+    # (docs/accuracy.md sect. 3); the open sea in front stays valid
+    sc = _overlap(outer_to=1.0)
+    ds = harbor.solve(sc, grid=True)
+    assert any(n.code == "overlapping-heads" for n in harbor.solver.assemble.notices(ds))
+    valid = ds.valid.values[0]
+    X, Y = np.meshgrid(ds.x.values, ds.y.values)
+    wet = np.isfinite(ds.kd.values[0])
+    basin = wet & (X > X0 - 5.5 * L) & (X < X0 + 5.5 * L) & (Y > Y0 + 0.5 * L) & (Y < Y0 + 3.5 * L)
+    sea = wet & (Y > Y0 + 7 * L)
+    assert basin.any() and sea.any()
+    assert not valid[basin].any()            # the lee behind the inner arm
+    assert valid[sea].mean() > 0.9           # open water up-wave
+    assert not ds.point_valid.values[0, 0]   # the berth at (0, 2 L) is in that lee
