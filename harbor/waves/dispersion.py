@@ -20,6 +20,20 @@ def _check_positive(name: str, value) -> np.ndarray:
     return arr
 
 
+def _check_regime(T, h, g):
+    # omega^2 h / g outside this range over- or underflows on the way to k (a period of
+    # 1e-300 s or 1e300 s): no water wave, and NaN would follow silently.
+    with np.errstate(over="ignore", under="ignore", divide="ignore", invalid="ignore"):
+        x = (2.0 * np.pi / T) ** 2 * h / g
+    bad = ~((x > 1e-200) & (x < 1e200))
+    if np.any(bad):
+        i = np.unravel_index(int(np.argmax(bad)), bad.shape) if bad.ndim else ()
+        Tb, hb = np.broadcast_arrays(T, h)
+        raise ValueError(f"period {float(Tb[i]):g} s at depth {float(hb[i]):g} m is "
+                         "outside the range of water waves (omega^2 h / g = "
+                         f"{float(x[i]):g} over- or underflows)")
+
+
 def wavenumber(period, depth, g: float = G_STANDARD):
     r"""Wavenumber of a linear surface gravity wave on water of constant depth.
 
@@ -40,7 +54,9 @@ def wavenumber(period, depth, g: float = G_STANDARD):
     Raises
     ------
     ValueError
-        If a period or depth is not finite or not positive.
+        If a period or depth is not finite or not positive, or if
+        :math:`\omega^2 h / g` lies outside (1e-200, 1e200) (no water wave: the
+        computation would over- or underflow).
 
     Notes
     -----
@@ -67,6 +83,7 @@ def wavenumber(period, depth, g: float = G_STANDARD):
     h = _check_positive("depth", depth)
     if not (np.isfinite(g) and g > 0):
         raise ValueError(f"g must be positive and finite, got {g!r}")
+    _check_regime(T, h, g)
     T, h = np.broadcast_arrays(T, h)
     omega = 2.0 * np.pi / T
     x = omega**2 * h / g
