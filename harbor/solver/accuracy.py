@@ -19,7 +19,7 @@ import shapely
 from harbor.cautions import Notice
 from harbor.errors import InputError
 from harbor.solver.field import solve_field
-from harbor.solver.layout import BEND_DIFFRACTION_DEG, edge_on_arms
+from harbor.solver.layout import edge_on_arms
 
 __all__ = ["accuracy_warnings", "invalid_mask", "field_method_solve", "field_method_notes",
            "MAX_FIELD_WAVELENGTHS"]
@@ -68,9 +68,9 @@ ENTRANCE_WAVELENGTHS = 5.0
 OVERLAP_CHANNEL_WAVELENGTHS = 4.0
 #: A bend of an arm turning by at least this (degrees) ...
 BEND_DEG = 30.0
-#: ... within this many wavelengths (along the arm) of a free head is off (measured: bends
-#: of 30-90 deg 1-6 L from the head: 10-40 % of the lee off when treated as straight,
-#: 36-82 % with half-plane terms; gentler bends, now treated as straight, 0-16 %).
+#: ... within this many wavelengths (along the arm) of a free head is off (measured with
+#: the wedge treatment at 90 deg: bends of 30-60 deg 1-6 L from the head 4-25 % of the
+#: lee off, against 19-65 % before; gentler bends 0 %; docs/accuracy.md sect. 3a).
 BEND_NEAR_HEAD_WAVELENGTHS = 6.0
 #: Angles within this of a threshold (degrees) count as at the threshold: the layouts of
 #: the table sit exactly on them.
@@ -274,14 +274,12 @@ def _findings(layout, wavelength, directions=()):
             if not arm.rooted_end:
                 along.append(cum[-1] - cum[k])
             if along and min(along) <= BEND_NEAR_HEAD_WAVELENGTHS * L:
-                how = ("with half-plane solutions" if turn >= BEND_DIFFRACTION_DEG
-                       else "as straight")
-                share = "36-82 %" if turn >= BEND_DIFFRACTION_DEG else "10-40 %"
                 add({_ix(arms, arm)}, Notice(
                     "bend-near-head", f"arm '{arm.name}' bends by {turn:.0f} deg {min(along):.0f} m "
                     f"({min(along) / L:.1f} L) from its head: the general method treats "
-                    f"the bend {how} and was measured off by more than 0.05 in K' over "
-                    f"{share} of the lee of such a dog-leg (up to 0.3-0.6 near the bend; "
+                    f"the bend as a wedge, with the head's wave diffracted again at the "
+                    f"bend, and was measured off by more than 0.05 in K' over 4-25 % of "
+                    f"the lee of such a dog-leg at 90 deg (up to 0.1-0.14 near the bend; "
                     f"{ref})"))
 
     # direction-dependent rules
