@@ -148,6 +148,11 @@ def cmd_check(args):
           f"polygon(s), {len(sc.seas)} sea state(s), {len(sc.points)} point(s)")
     print(f"  CRS {site.crs_code}; meridian convergence at the site {site.convergence_deg:+.3f} deg "
           f"(grid bearing = true bearing - convergence); depth {site.depth:g} m")
+    from harbor.geometry.entrance import entrance_width
+
+    width = entrance_width(sc.layout)
+    if width is not None:
+        print(f"  entrance width {width:.1f} m (narrowest water passage between the structures)")
     if sc.grid is not None:
         gx, gy = grid_coordinates(sc.grid)
         print(f"  grid {gx.size} x {gy.size} points at {sc.grid.spacing:g} m")
@@ -494,7 +499,7 @@ def cmd_climate(args):
         title = f"Berth downtime, head of '{args.arm}' moved {args.move:+g} m " \
                 f"(entrance {width:.1f} m)"
     elif width is not None:
-        print(f"entrance between the nearest heads: {width:.1f} m")
+        print(f"entrance width (narrowest passage): {width:.1f} m")
         title = f"Berth downtime by wave direction (entrance {width:.1f} m)"
     written = write_climate(res, args.out, title=title)
     print(downtime_text(res))

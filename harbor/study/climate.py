@@ -446,8 +446,9 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
         ``spreading``, ``percent``, ``row_sector``, ``reaching``; per row and point
         ``kd``, ``point_height`` (m), ``exceeds``. Attributes: ``warnings`` (list of
         str), ``cases``, ``table_rows``, ``file``, ``title``, ``scenario``, ``arm``,
-        ``move`` (m), ``entrance_width`` (m: the moved head's gap, or the gap between
-        the nearest heads; None when the layout has none), ``cautions``. The same
+        ``move`` (m), ``entrance_width`` (m:
+        :func:`harbor.geometry.entrance.entrance_width`, the narrowest water passage
+        between the structures; None when the layout has none), ``cautions``. The same
         labelled shape as :func:`harbor.study.sweep.sweep`.
 
     Raises
@@ -491,10 +492,9 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
             raise InputError(f"cannot move the head of '{arm}' by {move:g} m: {e}",
                              file=scenario.path or None, key="move") from None
     else:
-        from harbor.geometry.entrance import nearest_heads
+        from harbor.geometry.entrance import entrance_width
 
-        ent = nearest_heads(scenario.layout)
-        width = None if ent is None else float(ent.width)
+        width = entrance_width(scenario.layout)   # the one definition, as check and sweep
     tab = climate_table(table)
     limited = tuple(p for p in scenario.points if p.limit is not None)
     if not limited:
