@@ -128,16 +128,21 @@ def staging_dir(out_dir):
     out = Path(out_dir).resolve()
     parent = out.parent
     parent.mkdir(parents=True, exist_ok=True)
-    stage = Path(tempfile.mkdtemp(prefix=f".{out.name}.staging-", dir=parent))
     names: list[str] = []
+    stage = None
     try:
+        # created with the signals held, so that a SIGTERM arriving as the folder appears
+        # is raised inside this try (and the folder removed), not just before it
+        with _signals_held():
+            stage = Path(tempfile.mkdtemp(prefix=f".{out.name}.staging-", dir=parent))
         yield stage, names
         with _signals_held():
             out.mkdir(parents=True, exist_ok=True)
             for n in names:
                 os.replace(stage / n, out / n)
     finally:
-        shutil.rmtree(stage, ignore_errors=True)
+        if stage is not None:
+            shutil.rmtree(stage, ignore_errors=True)
 
 
 @contextlib.contextmanager
