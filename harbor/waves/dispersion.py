@@ -128,3 +128,74 @@ def wavelength(period, depth, g: float = G_STANDARD):
     """
     k = wavenumber(period, depth, g)
     return 2.0 * np.pi / k
+
+
+def phase_velocity(period, depth, g: float = G_STANDARD):
+    r"""Phase velocity c = omega / k of a linear wave (m/s), vectorised over depth.
+
+    Parameters
+    ----------
+    period : float or array_like
+        Wave period T (s), > 0.
+    depth : float or array_like
+        Still-water depth h (m), > 0. Broadcast against ``period``.
+    g : float, optional
+        Gravitational acceleration (m/s^2).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        c (m/s).
+
+    Notes
+    -----
+    :math:`c = \omega / k` with k from :func:`wavenumber`; :math:`c \to \sqrt{g h}` in
+    shallow water and :math:`g / \omega` in deep water.
+
+    References
+    ----------
+    .. [1] Dean, R. G., & Dalrymple, R. A. (1991). *Water Wave Mechanics for Engineers and
+       Scientists*. World Scientific, ch. 3-4.
+    """
+    k = np.asarray(wavenumber(period, depth, g))
+    c = 2.0 * np.pi / np.asarray(period, float) / k
+    return float(c) if np.ndim(c) == 0 else c
+
+
+def group_velocity(period, depth, g: float = G_STANDARD):
+    r"""Group velocity c_g of a linear wave (m/s), vectorised over depth.
+
+    Parameters
+    ----------
+    period : float or array_like
+        Wave period T (s), > 0.
+    depth : float or array_like
+        Still-water depth h (m), > 0. Broadcast against ``period``.
+    g : float, optional
+        Gravitational acceleration (m/s^2).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        c_g (m/s).
+
+    Notes
+    -----
+    .. math:: c_g = n c, \qquad n = \tfrac12\left(1 + \frac{2 k h}{\sinh 2 k h}\right)
+
+    (n = 1 in shallow water, 1/2 in deep water; for 2kh > 700 the second term is taken
+    as zero to avoid overflow).
+
+    References
+    ----------
+    .. [1] Dean, R. G., & Dalrymple, R. A. (1991). *Water Wave Mechanics for Engineers and
+       Scientists*. World Scientific, sect. 4.7.
+    """
+    T = np.asarray(period, float)
+    h = np.asarray(depth, float)
+    k = np.asarray(wavenumber(T, h, g))
+    kh2 = 2.0 * k * h
+    with np.errstate(over="ignore"):
+        ratio = np.where(kh2 < 700.0, kh2 / np.sinh(np.minimum(kh2, 700.0)), 0.0)
+    cg = 0.5 * (1.0 + ratio) * (2.0 * np.pi / T) / k
+    return float(cg) if np.ndim(cg) == 0 else cg
