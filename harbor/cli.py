@@ -91,6 +91,18 @@ climate-rows.csv (every row at every point) and downtime.png. With --arm and --m
 the head of that arm is first moved as in `harbor sweep`.
 """
 
+COMPARE_EXAMPLE = """several scenarios (layout alternatives):
+  harbor climate layout-a.toml layout-b.toml layout-c.toml --table climate.csv --out cmp
+  harbor climate layout-*.toml --table climate.csv --scheduler tcp://head-node:8786
+  harbor climate harbour-with-alternatives.toml --table climate.csv --out cmp
+
+With two or more scenarios (or one whose file has [[alternative]] tables: variants of
+its layout, see docs/screening.md), writes alternatives.csv (alternative,point,limit,
+total and one column per sector), alternatives-rows.csv (every row at every point under every
+alternative) and alternatives.png (alternatives side by side per berth). Alternatives
+are named by their file names; berths are matched by their point names.
+"""
+
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message):  # one line, exit 2 (argparse's own convention)
@@ -136,6 +148,11 @@ def cmd_check(args):
           f"polygon(s), {len(sc.seas)} sea state(s), {len(sc.points)} point(s)")
     print(f"  CRS {site.crs_code}; meridian convergence at the site {site.convergence_deg:+.3f} deg "
           f"(grid bearing = true bearing - convergence); depth {site.depth:g} m")
+    from harbor.geometry.entrance import entrance_width
+
+    width = entrance_width(sc.layout)
+    if width is not None:
+        print(f"  entrance width {width:.1f} m (narrowest water passage between the structures)")
     if sc.grid is not None:
         gx, gy = grid_coordinates(sc.grid)
         print(f"  grid {gx.size} x {gy.size} points at {sc.grid.spacing:g} m")
@@ -396,9 +413,11 @@ def add_climate_parser(subparsers):
     """
     sp = subparsers.add_parser(
         "climate", help="berth downtime (%% of time above the limit) from a wave climate table",
-        epilog=CLIMATE_EXAMPLE + "\n" + EPILOG_TAIL,
+        epilog=CLIMATE_EXAMPLE + "\n" + COMPARE_EXAMPLE + "\n" + EPILOG_TAIL,
         formatter_class=argparse.RawDescriptionHelpFormatter)
-    sp.add_argument("scenario", help="scenario file (TOML); its points' limits are used")
+    sp.add_argument("scenario", nargs="+",
+                    help="scenario file(s) (TOML); its points' limits are used; several "
+                         "files are compared as layout alternatives")
     sp.add_argument("--table", required=True, metavar="FILE",
                     help="climate table (CSV: height,period,from,percent[,spreading])")
     sp.add_argument("--arm", metavar="NAME",
@@ -409,7 +428,15 @@ def add_climate_parser(subparsers):
     sp.add_argument("--out", default="harbor-out", metavar="DIR",
                     help="output folder (default harbor-out)")
     sp.add_argument("--workers", type=int, metavar="N",
-                    help="threads to use (default: one per core)")
+                    help="threads or worker processes at most (default: one per core)")
+    sp.add_argument("--executor", choices=["auto", "serial", "threads", "local"],
+                    default="auto",
+                    help="where the solves run: auto (default: threads, or an embedded "
+                         "Dask cluster for long runs), serial, threads, local (embedded "
+                         "Dask cluster)")
+    sp.add_argument("--scheduler", metavar="ADDRESS",
+                    help="an existing Dask scheduler, e.g. tcp://head-node:8786 (default: "
+                         "the environment variable HARBOR_SCHEDULER; see docs/cluster.md)")
     sp.add_argument("--quiet", action="store_true", help="no progress bar")
     sp.add_argument("--max-cases", type=int, metavar="N",
                     help="most distinct (period, direction, spreading) cases to solve "
@@ -436,7 +463,14 @@ def cmd_climate(args):
     from harbor.study.climate import (check_case_count, climate_downtime, duplicate_warning,
                                       percent_warning, read_climate)
 
-    sc = _load(args.scenario)
+    paths = args.scenario if isinstance(args.scenario, list) else [args.scenario]
+    if len(paths) > 1:
+        return _climate_alternatives(args, paths)
+    sc = _load(paths[0])
+    from harbor.study.alternatives import has_alternatives
+
+    if has_alternatives(paths[0]):
+        return _climate_alternatives(args, paths)
     if (args.arm is None) != (args.move is None):
         raise InputError("--arm and --move go together", key="--arm" if args.arm is None
                          else "--move")
@@ -451,9 +485,9 @@ def cmd_climate(args):
         print(f"warning: {dw}")
     print(check_case_count(table, getattr(args, "max_cases", None)))
     try:
-        res = climate_downtime(sc, table, method=args.method, workers=args.workers,
-                               progress=_progress_printer(args.quiet), arm=args.arm,
-                               move=args.move)
+        with _climate_executor(args, table, 1) as ex:
+            res = climate_downtime(sc, table, method=args.method, workers=args.workers,
+                                   arm=args.arm, move=args.move, executor=ex)
     except InputError as e:
         if e.key in ("arm", "move"):  # name the option the user typed
             raise InputError(e.problem, file=e.file, key=f"--{e.key}") from None
@@ -465,12 +499,60 @@ def cmd_climate(args):
         title = f"Berth downtime, head of '{args.arm}' moved {args.move:+g} m " \
                 f"(entrance {width:.1f} m)"
     elif width is not None:
-        print(f"entrance between the nearest heads: {width:.1f} m")
+        print(f"entrance width (narrowest passage): {width:.1f} m")
         title = f"Berth downtime by wave direction (entrance {width:.1f} m)"
     written = write_climate(res, args.out, title=title)
     print(downtime_text(res))
     print(f"wrote {', '.join(str(p) for p in written)}")
     _print_warnings([w for w in res.attrs["warnings"] if w != pw])
+    print(f"note: {CAUTION_SHORT}")
+    return 0
+
+
+def _climate_executor(args, table, n_alternatives):
+    """The executor of ``harbor climate`` (connects to a scheduler before any solve)."""
+    from harbor.study.alternatives import count_tasks, table_estimate
+    from harbor.study.executor import make_executor
+
+    display = not getattr(args, "quiet", False) and sys.stderr.isatty()
+    return make_executor(getattr(args, "executor", "auto"),
+                         scheduler=getattr(args, "scheduler", None), workers=args.workers,
+                         n_tasks=count_tasks(table, n_alternatives),
+                         estimate=table_estimate(table), display=display)
+
+
+def _climate_alternatives(args, paths):
+    """``harbor climate A.toml B.toml ...``: compare layout alternatives."""
+    from harbor.outputs.alternatives import alternatives_text, write_alternatives
+    from harbor.study.alternatives import compare_alternatives
+    from harbor.study.climate import percent_warning, read_climate
+
+    if args.arm is not None or args.move is not None:
+        raise InputError("--arm and --move apply to one scenario; for several "
+                         "alternatives give each layout its own scenario file",
+                         key="--arm" if args.arm is not None else "--move")
+    from harbor.study.alternatives import load_alternatives
+
+    scs, names = [], []
+    for p in paths:
+        more, their = load_alternatives(p)
+        scs.extend(more)
+        names.extend(their)
+    if len(set(names)) != len(names):            # the same file name in two folders
+        names = None
+    table = read_climate(args.table)
+    pw = percent_warning(table)
+    if pw:
+        print(f"warning: {pw}")
+    with _climate_executor(args, table, len(scs)) as ex:
+        print(f"running on: {ex.describe()}")
+        ds = compare_alternatives(scs, table, method=args.method, executor=ex, names=names)
+    written = write_alternatives(ds, args.out)
+    print(f"{ds.sizes['alternative']} alternatives x {ds.sizes['row']} climate rows: "
+          f"{ds.attrs['cases']} distinct solves in {ds.attrs['tasks']} tasks")
+    print(alternatives_text(ds))
+    print(f"wrote {', '.join(str(p) for p in written)}")
+    _print_warnings([w for w in ds.attrs["warnings"] if w != pw])
     print(f"note: {CAUTION_SHORT}")
     return 0
 
@@ -640,7 +722,8 @@ def main(argv=None):
 
     parser = build_parser()
     args = parser.parse_args(argv)
-    restore = _on_sigterm_raise(Terminated)
+    signals = []
+    restore = _on_signals_raise(Terminated, signals)
     try:
         out = getattr(args, "out", None)
         if out is None:
@@ -661,21 +744,27 @@ def main(argv=None):
         return 130
     except BrokenPipeError:
         return 0
-    except OSError as e:
-        fault = machine_fault(e)
+    except Exception as e:
+        if signals:
+            # the signal's exception was raised inside code that turned it into another
+            # one (an extension module being imported reports "initialization failed")
+            term = signals[-1] != 2
+            print(f"harbor: {'terminated (SIGTERM)' if term else 'interrupted'}; no output "
+                  "written", file=sys.stderr)
+            return 143 if term else 130
+        fault = machine_fault(e) if isinstance(e, OSError) else None
         if fault is None or os.environ.get("HARBOR_DEBUG"):
             return _internal_error(e)
         print(f"harbor: {fault.line()}", file=sys.stderr)
         return fault.exit_code
-    except Exception as e:  # pragma: no cover - internal errors
-        return _internal_error(e)
     finally:
         restore()
 
 
-def _on_sigterm_raise(exc_type):
-    """Make SIGTERM raise ``exc_type`` in the main thread (clean-ups run as for Ctrl-C);
-    return the function that restores the previous handler."""
+def _on_signals_raise(exc_type, seen):
+    """Make SIGTERM raise ``exc_type`` and SIGINT ``KeyboardInterrupt`` in the main thread
+    (clean-ups run as for Ctrl-C), noting each signal in ``seen``; return the function that
+    restores the previous handlers."""
     import signal
     import threading
 
@@ -683,10 +772,20 @@ def _on_sigterm_raise(exc_type):
         return lambda: None
 
     def handler(signum, frame):
-        raise exc_type()
+        seen.append(int(signum))
+        raise exc_type() if signum == signal.SIGTERM else KeyboardInterrupt()
 
-    old = signal.signal(signal.SIGTERM, handler)
-    return lambda: signal.signal(signal.SIGTERM, old)
+    old_term = signal.signal(signal.SIGTERM, handler)
+    old_int = None
+    if signal.getsignal(signal.SIGINT) is signal.default_int_handler:
+        old_int = signal.signal(signal.SIGINT, handler)
+
+    def restore():
+        signal.signal(signal.SIGTERM, old_term)
+        if old_int is not None:
+            signal.signal(signal.SIGINT, old_int)
+
+    return restore
 
 
 def _internal_error(e):  # pragma: no cover - internal errors

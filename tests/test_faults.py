@@ -148,3 +148,27 @@ def test_sigterm_during_staging_subprocess(scenario, tmp_path):
     assert proc.returncode == EXIT_TERMINATED, err
     assert "terminated" in _one_line(err)
     assert _leftovers(tmp_path) == []
+
+
+@pytest.mark.parametrize("sig,code", [(signal.SIGINT, 130), (signal.SIGTERM, EXIT_TERMINATED)])
+def test_signal_turned_into_another_error_still_reported(scenario, tmp_path, capsys,
+                                                         monkeypatch, sig, code):
+    # An extension module imported while the signal arrives reports its own
+    # "ImportError: initialization failed" instead of the signal's exception.
+    import xarray as xr
+
+    def import_hit(self, path, *a, **k):
+        Path(path).write_bytes(b"partial")
+        try:
+            os.kill(os.getpid(), sig)
+            time.sleep(5)
+        except BaseException:
+            raise ImportError("initialization failed") from None
+        raise AssertionError("the signal was not handled")
+
+    monkeypatch.setattr(xr.Dataset, "to_netcdf", import_hit)
+    got = main(["map", str(scenario), "--out", str(tmp_path / "out"), "--quiet"])
+    err = capsys.readouterr().err
+    assert got == code
+    assert "no output written" in _one_line(err) and "internal error" not in err
+    assert _leftovers(tmp_path) == []

@@ -572,3 +572,66 @@ def test_point_table_lists_every_point(case):
     for p in sc.points:
         assert p.name in text
     assert "OVER" in text or "ok" in text
+
+
+# --------------------------------------------------------------------------- deliverables
+
+def _pdf_pages(path):
+    # matplotlib writes one "/Type /Page" object per page (and "/Type /Pages" once)
+    data = Path(path).read_bytes()
+    return data.count(b"/Type /Page") - data.count(b"/Type /Pages")
+
+
+def test_report_has_cover_sheets_warnings_and_cautions(run):
+    sc, res, out, _ = run
+    # cover, one sheet per sea state, the warnings page, the cautions page
+    assert _pdf_pages(out / "report.pdf") == 1 + len(sc.seas) + 2
+
+
+def test_every_warning_is_printed_on_the_sheet(case):
+    # 30 long warnings for one sea state cannot fit beside the map: they continue on a
+    # second page rather than being cut to "+n more"
+    from harbor.cautions import Notice
+    from harbor.outputs.sheet import sheet_pages
+    from harbor.solver.assemble import notices, notices_variables
+
+    sc, res = case
+    name = str(res.sea.values[0])
+    many = [Notice(f"w{i}", f"warning {i}: " + "a long explanation of the problem " * 3,
+                   sea=name) for i in range(30)]
+    r = res.drop_vars([v for v in res if v.startswith("notice_")], errors="ignore")
+    r = r.assign(notices_variables(many))
+    assert len(notices(r, sea=name)) == 30
+    pages = sheet_pages(r, name)
+    assert len(pages) >= 2
+    text = " ".join(t.get_text() for fig in pages for t in fig.texts)
+    for i in range(30):
+        assert f"warning {i}:" in text
+
+
+def test_a_flagged_point_is_never_a_plain_ok(case):
+    # a point whose value is outside its method's validity keeps its verdict but always
+    # with the flag beside it: '?' in the terminal table, valid=false in the CSV
+    sc, res = case
+    r = res.copy()
+    pv = np.ones((r.sizes["sea"], r.sizes["point"]), bool)
+    pv[:, 0] = False
+    r["point_valid"] = (("sea", "point"), pv)
+    name = str(r.point.values[0])
+    line = next(ln for ln in export.point_table(r).splitlines() if ln.startswith(name))
+    assert "ok?" in line or "OVER?" in line
+    rows = list(csv.DictReader(io.StringIO(export.points_csv_text(r))))
+    assert {row["valid"] for row in rows if row["point"] == name} == {"false"}
+    assert {row["valid"] for row in rows if row["point"] != name} == {"true"}
+
+
+def test_outputs_need_nothing_but_the_result_file(run, tmp_path):
+    # grid.nc carries the layout, CRS, points and warnings: a map and the point table
+    # are drawn from it alone (no scenario object anywhere)
+    sc, res, out, _ = run
+    with xr.open_dataset(out / "grid.nc") as nc:
+        assert nc["arm_wkt"].sizes["arm"] == len(sc.layout.arms)
+        assert nc["crs"].attrs["crs_wkt"] == res["crs"].attrs["crs_wkt"]
+        p = maps.sheltering_map(nc, str(nc.sea.values[0]), tmp_path / "again.png", dpi=40)
+        assert p.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+        assert export.point_table(nc) == export.point_table(res)

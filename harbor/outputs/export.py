@@ -530,19 +530,24 @@ def write_all(result, out_dir, seas=None, show="kd"):
     only when all of them have been written; if anything fails, nothing is left behind
     and existing files in ``out_dir`` are untouched.
     """
+    from harbor.outputs import sheet as _sheet
     from harbor.outputs.maps import sheltering_map
     from harbor.outputs.report import pdf_report
-    from harbor.outputs.sheet import pdf_sheet
 
     names = [sea_name(result, s) for s in (seas if seas is not None else
                                            [str(v) for v in result["sea"].values])]
     slugs = unique_slugs(names)
+    drawn = {}
+
+    def sheet(p, name, i):
+        # each sheet is drawn once: the same pages go into its own file and the report
+        return _sheet.pdf_sheet(result, name, p, i + 1, len(names), show=show, keep=drawn)
+
     with staging_dir(out_dir) as (stage, staged):
         for i, (name, sl) in enumerate(zip(names, slugs)):
             for fname, writer in (
                     (f"map-{sl}.png", lambda p: sheltering_map(result, name, p, show=show)),
-                    (f"sheet-{sl}.pdf", lambda p: pdf_sheet(result, name, p, i + 1,
-                                                           len(names), show=show)),
+                    (f"sheet-{sl}.pdf", lambda p: sheet(p, name, i)),
                     (f"isolines-{sl}.geojson",
                      lambda p: write_geojson_isolines(result, name, p))):
                 writer(stage / fname)
@@ -551,7 +556,7 @@ def write_all(result, out_dir, seas=None, show="kd"):
         staged.append("grid.nc")
         write_points_csv(result, stage / "points.csv")
         staged.append("points.csv")
-        pdf_report(result, stage / "report.pdf", seas=names, show=show)
+        pdf_report(result, stage / "report.pdf", seas=names, show=show, sheets=drawn)
         staged.append("report.pdf")
         from harbor.outputs.gis import write_gis
         staged += write_gis(result, stage, seas=names)

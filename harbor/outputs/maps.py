@@ -65,7 +65,7 @@ def _declutter_labels(ax, cs, fmt, fontsize):
         xy = np.asarray(t.get_position(), float)
         pos_in = ax.transData.transform(xy) / fig.dpi
         bb = t.get_window_extent(renderer).padded(2)
-        same = [p for p, txt in spots if txt == t.get_text()]
+        same = [p for p, txt in spots if txt == t.get_text() and p is not None]
         if any(np.hypot(*(pos_in - p)) < LABEL_SPACING_IN for p in same):
             continue
         if any(_overlap(bb, o) > 0 for o in boxes):
@@ -73,6 +73,11 @@ def _declutter_labels(ax, cs, fmt, fontsize):
         kept.append(tuple(xy))
         boxes.append(bb)
         spots.append((pos_in, t.get_text()))
+    # every level keeps at least one label, even where labels are crowded
+    for t in trial:
+        if t.get_text() not in {txt for _, txt in spots}:
+            kept.append(tuple(np.asarray(t.get_position(), float)))
+            spots.append((None, t.get_text()))
     for t in trial:
         t.remove()
     cs.labelTexts = []

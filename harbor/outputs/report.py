@@ -116,7 +116,7 @@ def _cover_pages(result, seas):
     return pages
 
 
-def pdf_report(result, path, seas=None, show="kd"):
+def pdf_report(result, path, seas=None, show="kd", sheets=None):
     """Write the combined PDF report of a run.
 
     Parameters
@@ -129,6 +129,10 @@ def pdf_report(result, path, seas=None, show="kd"):
         Sea states to include (default all).
     show : {"kd", "height"}
         What the map sheets colour.
+    sheets : dict, optional
+        Sea state -> its pages from :func:`harbor.outputs.sheet.sheet_pages`, when they
+        are already drawn (:func:`harbor.outputs.write_all` draws each sheet once for
+        both files).
 
     Returns
     -------
@@ -146,7 +150,10 @@ def pdf_report(result, path, seas=None, show="kd"):
     title = str(result.attrs.get("title", ""))
     pages = _cover_pages(result, names)
     for i, name in enumerate(names):
-        pages += sheet_pages(result, name, i + 1, len(names), show)
+        if sheets is not None and name in sheets:
+            pages += sheets[name]
+        else:
+            pages += sheet_pages(result, name, i + 1, len(names), show)
     from harbor.solver.assemble import notices
 
     items = list(dict.fromkeys(notices(result)))

@@ -301,7 +301,7 @@ def write_pdf(pages, path, title="", subject=DOCUMENT_TYPE):
     return Path(path)
 
 
-def pdf_sheet(result, sea, path, sheet_number=1, sheet_count=1, show="kd"):
+def pdf_sheet(result, sea, path, sheet_number=1, sheet_count=1, show="kd", keep=None):
     """Write the A4-landscape PDF sheet of one sea state (more pages if the warnings
     need them).
 
@@ -317,6 +317,8 @@ def pdf_sheet(result, sea, path, sheet_number=1, sheet_count=1, show="kd"):
         Printed as "n / N" in the title block.
     show : {"kd", "height"}
         Colour by K' or by wave height (m).
+    keep : dict, optional
+        When given, ``keep[sea name]`` receives the drawn pages (for the report).
 
     Returns
     -------
@@ -342,4 +344,6 @@ def pdf_sheet(result, sea, path, sheet_number=1, sheet_count=1, show="kd"):
     """
     name = sea_name(result, sea)
     pages = sheet_pages(result, name, sheet_number, sheet_count, show)
+    if keep is not None:
+        keep[name] = pages
     return write_pdf(pages, path, title=f"{name} - {result.attrs.get('title', '')}")

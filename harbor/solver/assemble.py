@@ -15,7 +15,7 @@ from harbor import __version__
 from harbor.cautions import REFLECTION_NOTE, Notice, as_notice, caution_text
 from harbor.geometry.visibility import distance_to_arms, inside_land
 from harbor.errors import InputError
-from harbor.solver.accuracy import accuracy_warnings
+from harbor.solver.accuracy import accuracy_warnings, invalid_mask  # noqa: F401
 from harbor.solver.layout import METHOD_GENERAL, layout_field, layout_warnings
 from harbor.solver.random import random_sea_field
 from harbor.solver.resolution import grid_notices
@@ -267,13 +267,14 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
             more += field_method_notes(scenario, s)
         else:
             alpha = float(site.travel_angle(s.from_deg))
-            off = accuracy_warnings(scenario.layout, L,
-                                    directions=[(f"sea '{s.name}'", alpha)])
+            # measured outside the method's validity: the lee that the concerned heads'
+            # and bends' waves reach, and their near field (accuracy.invalid_mask)
+            bad, off = invalid_mask(scenario.layout, L, alpha, allx, ally,
+                                    label=f"sea '{s.name}'")
             if off:
-                # measured outside the method's validity for this layout: no value of this
-                # sea may pass as trustworthy (finer, per-region rules may relax this)
-                valid[i] = False
-                pvalid[i] = False
+                nw = int(wet.sum())
+                valid[i][wet] = ~bad[:nw]
+                pvalid[i] = ~bad[nw:]
             more += off
         for w in more:
             w = as_notice(w).for_sea(s.name)

@@ -13,12 +13,10 @@ K' scales every row that shares it.
 
 from __future__ import annotations
 
-import concurrent.futures as _cf
 import csv
 import dataclasses
 import io
 import math
-import os
 from pathlib import Path
 
 import numpy as np
@@ -400,46 +398,18 @@ def _threads_safe() -> bool:
     return True
 
 
-def _run_cases(scenario, cases, method, workers, progress):
-    # Threads, not processes. Measured on the demo climate (31-34 cases, 2 cores shared
-    # with other jobs, so the spread is wide): one after the other 10-14 s, two threads
-    # 7-13 s, two forked processes 14-18 s, two fork-server processes 17-18 s (each must
-    # import harbor).
-    # Threads also need no pickling, no `if __name__ == "__main__"` guard in the user's
-    # script, and are safe with the kernels' OpenMP runtime, which forking is not.
-    n = len(cases)
-    names = [f"climate case {i + 1}" for i in range(n)]
-    results = [None] * n
-    if workers is None:
-        workers = os.cpu_count() or 1
-    workers = max(1, min(int(workers), n))
-    # the first case runs alone: it warms the caches and starts the threading layer
-    results[0] = _solve_case(scenario, method, cases[0], names[0])
-    if progress is not None:
-        progress("climate cases", 1, n)
-    if workers == 1 or n < PARALLEL_FROM or not _threads_safe():
-        for i in range(1, n):
-            results[i] = _solve_case(scenario, method, cases[i], names[i])
-            if progress is not None:
-                progress("climate cases", i + 1, n)
-        return results
-    with _cf.ThreadPoolExecutor(max_workers=workers) as pool:
-        futs = {pool.submit(_solve_case, scenario, method, cases[i], names[i]): i
-                for i in range(1, n)}
-        try:
-            for done, f in enumerate(_cf.as_completed(futs), 2):
-                results[futs[f]] = f.result()
-                if progress is not None:
-                    progress("climate cases", done, n)
-        except BaseException:
-            for f in futs:
-                f.cancel()
-            raise
-    return results
+def _run_cases(scenario, cases, method, workers, progress, executor=None):
+    # Through the one executor of every study (harbor.study.executor): by default
+    # threads in this process (measured on the demo climate, 2 shared cores: serial
+    # 10-14 s, two threads 7-13 s, two processes 14-18 s), or the executor given.
+    from harbor.study.alternatives import solve_cases
+
+    return solve_cases(scenario, cases, method=method, executor=executor, workers=workers,
+                       progress=progress)
 
 
 def climate_downtime(scenario, table, method="auto", workers=None, progress=None, arm=None,
-                     move=None):
+                     move=None, executor=None):
     """Downtime of every point with a limit under a wave climate.
 
     Parameters
@@ -456,10 +426,14 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
         Threads to spread the distinct cases over (default: the machine's cores; 1
         solves them one after the other).
     progress : callable, optional
-        ``progress(name, done, total)`` after each distinct case.
+        ``progress(name, done, total)`` after each task (one task solves every
+        direction of one (period, spreading)).
     arm, move : str and float, optional
         First move the free head of ``arm`` by ``move`` metres along its end segment
         (as :func:`harbor.study.sweep.move_head`; positive lengthens).
+    executor : harbor.study.executor.Executor, optional
+        Where the solves run (serial, threads, a Dask cluster); default threads as
+        ``workers`` says.
 
     Returns
     -------
@@ -472,8 +446,9 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
         ``spreading``, ``percent``, ``row_sector``, ``reaching``; per row and point
         ``kd``, ``point_height`` (m), ``exceeds``. Attributes: ``warnings`` (list of
         str), ``cases``, ``table_rows``, ``file``, ``title``, ``scenario``, ``arm``,
-        ``move`` (m), ``entrance_width`` (m: the moved head's gap, or the gap between
-        the nearest heads; None when the layout has none), ``cautions``. The same
+        ``move`` (m), ``entrance_width`` (m:
+        :func:`harbor.geometry.entrance.entrance_width`, the narrowest water passage
+        between the structures; None when the layout has none), ``cautions``. The same
         labelled shape as :func:`harbor.study.sweep.sweep`.
 
     Raises
@@ -517,10 +492,9 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
             raise InputError(f"cannot move the head of '{arm}' by {move:g} m: {e}",
                              file=scenario.path or None, key="move") from None
     else:
-        from harbor.geometry.entrance import nearest_heads
+        from harbor.geometry.entrance import entrance_width
 
-        ent = nearest_heads(scenario.layout)
-        width = None if ent is None else float(ent.width)
+        width = entrance_width(scenario.layout)   # the one definition, as check and sweep
     tab = climate_table(table)
     limited = tuple(p for p in scenario.points if p.limit is not None)
     if not limited:
@@ -536,7 +510,7 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
     from_norm = np.mod(tab["from"].to_numpy(float), 360.0)
     keys = list(zip(tab["period"].to_numpy(float), from_norm, tab["spreading"].to_numpy(float)))
     cases = list(dict.fromkeys(keys))
-    solved = _run_cases(sc, cases, method, workers, progress)
+    solved = _run_cases(sc, cases, method, workers, progress, executor)
     where = {c: i for i, c in enumerate(cases)}
     for _, _, ws in solved:
         for x in ws:

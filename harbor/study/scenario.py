@@ -20,7 +20,7 @@ except ModuleNotFoundError:  # pragma: no cover - Python 3.10
 
 from harbor.errors import InputError
 from harbor.geometry import checks
-from harbor.geometry.layout import Arm, Land, Layout, Point
+from harbor.geometry.layout import Arm, Land, Layout, Point, join_ends
 from harbor.geometry.site import Site, lonlat_problem, parse_crs
 from harbor.solver.resolution import coarse_grid_problem
 from harbor.study._files import MAX_SCENARIO_BYTES, read_text
@@ -145,7 +145,8 @@ class Scenario:
 MAX_GRID_POINTS = 4_000_000
 
 _KEYS = {
-    "top": ("title", "site", "arm", "land", "sea", "point", "grid"),
+    "top": ("title", "site", "arm", "land", "sea", "point", "grid",
+            "alternative"),  # layout alternatives: read by harbor.study.alternatives
     "site": ("crs", "depth", "g"),
     "arm": ("name", "line", "rooted"),
     "land": ("name", "outline"),
@@ -347,7 +348,10 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
     -----
     - An arm end inside or on a land polygon, or on another arm (a junction), is rooted
       and does not diffract; the tolerance is max(0.01 m, 1e-6 × layout size).
-      ``rooted`` ("start", "end", "both", "none") overrides.
+      ``rooted`` ("start", "end", "both", "none") overrides. An end within
+      :data:`harbor.geometry.layout.JOIN_TOLERANCE` (0.25 m) of another arm or of land
+      is first moved onto it (:func:`harbor.geometry.layout.join_ends`), and the join is
+      reported by ``harbor check``, as is an end within 2 m that is not joined.
     - Default grid bounds: the box around arms and points padded on every side by
       max(20 % of its larger side, 50 m); land is left out so that a large shore
       polygon does not inflate the grid.
@@ -545,11 +549,18 @@ def _build_layout(r, site, work, raw_arms, raw_lands, raw_points):
             raise r.err(e.text(show_xy), where, "outline") from None
         lands.append(Land(name=name, outline=poly))
 
+    # ends that miss another arm or land by centimetres are joined to it (the rule and
+    # its tolerance live in the geometry layer); `check` reports every join
+    lines, joins = join_ends(lines, [n for _, n, _, _ in arms_w], lands)
     ends = checks.rooted_ends(lines, [ld.outline for ld in lands], tol,
                               [rt for _, _, _, rt in arms_w])
-    arms = tuple(Arm(name=n, line=a, rooted_start=rs, rooted_end=re)
+    # a joined end is a junction, whatever `rooted` says
+    ends = [(rs or any(j.joined and j.arm == n and j.end == "start" for j in joins),
+             re or any(j.joined and j.arm == n and j.end == "end" for j in joins))
+            for (_, n, _, _), (rs, re) in zip(arms_w, ends)]
+    arms = tuple(Arm(name=n, line=a, rooted_start=bool(rs), rooted_end=bool(re))
                  for (_, n, _, _), a, (rs, re) in zip(arms_w, lines, ends))
-    layout = Layout(arms=arms, lands=tuple(lands))
+    layout = Layout(arms=arms, lands=tuple(lands), joins=tuple(joins))
 
     if pts_w:
         try:

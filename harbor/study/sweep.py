@@ -23,6 +23,7 @@ import shapely
 
 from harbor.cautions import CAUTION_SHORT
 from harbor.errors import InputError
+from harbor.geometry.entrance import entrance_width
 
 #: Columns of the sweep table and of its CSV file (contract of issue 6).
 SWEEP_COLUMNS = ["move", "entrance_width", "sea", "point", "kd", "height", "limit", "ok"]
@@ -111,8 +112,9 @@ def move_head(scenario, arm, move):
     moved : harbor.study.scenario.Scenario
         A copy with the new head; the rest of the layout, the seas and points unchanged.
     width : float
-        Entrance width (m): shortest distance from the moved head to any other arm or
-        land.
+        Entrance width (m) of the moved layout,
+        :func:`harbor.geometry.entrance.entrance_width` (the narrowest water passage
+        between the structures).
 
     Raises
     ------
@@ -127,8 +129,9 @@ def move_head(scenario, arm, move):
     Notes
     -----
     With :math:`P_h` the head and :math:`P_o` the other vertex of the end segment, the
-    new head is :math:`P_h + m (P_h - P_o)/|P_h - P_o|`. The entrance width is
-    :math:`\\min(d(P, \\text{other arms}), d(P, \\text{land}))` (shapely distances).
+    new head is :math:`P_h + m (P_h - P_o)/|P_h - P_o|`. A move is rejected when the
+    head comes within :data:`MIN_GAP` of another arm or land; the width reported is
+    :func:`harbor.geometry.entrance.entrance_width`.
     """
     i, end = find_arm(scenario, arm)
     layout = scenario.layout
@@ -193,7 +196,9 @@ def move_head(scenario, arm, move):
         raise MoveRejected(f"the head would be {width:.2f} m from another arm or land, "
                            f"less than {MIN_GAP:g} m (entrance closed)")
     moved = dataclasses.replace(scenario, layout=dataclasses.replace(layout, arms=arms_new))
-    return moved, width
+    # the reported width is the one entrance width of every command (geometry.entrance)
+    passage = entrance_width(moved.layout)
+    return moved, (width if passage is None else passage)
 
 
 def move_range(lo, hi, step):
