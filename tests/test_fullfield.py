@@ -285,3 +285,19 @@ def test_reflection_out_of_range_is_an_input_error():
         HarbourModel(layout, 8.0, points=[[0.0, 10.0]], reflection={"coast": 1.5})
     with pytest.raises(harbor.errors.InputError):
         HarbourModel(layout, 8.0, points=[[0.0, 10.0]], reflection={"quay": 0.5})
+
+
+def test_random_sea_in_open_water_keeps_its_height_and_period():
+    # Goda, Takayama & Suzuki (1978): K_eff^2 = sum w K'^2 / sum w and the T_m02 ratio;
+    # with nothing to scatter every component keeps K' = 1, so K_eff = 1 and the ratio
+    # is 1 (a property of the definitions), up to the P2 discretisation error.
+    from harbor.waves.spectra import random_components
+
+    comp = random_components(1.0, 8.0, 25.0, n_freq=3, n_dir=4)
+    pts = np.array([[0.0, 0.0], [60.0, 40.0]])
+    m = HarbourModel(Layout(), 10.0, points=pts, points_per_wavelength=6)
+    res = m.random(comp, 90.0)
+    np.testing.assert_allclose(res.kd_points, 1.0, atol=0.01)
+    np.testing.assert_allclose(res.ratio_points, 1.0, atol=0.01)
+    assert res.reaching == pytest.approx(1.0)
+    assert len(res.info["bands"]) == 3  # one factorisation per frequency band

@@ -26,6 +26,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import shapely
 
+from harbor.cautions import Notice
 from harbor.errors import InputError
 from harbor.geometry.bathymetry import Bathymetry, constant
 from harbor.solver.fullfield import mesh as _mesh
@@ -43,14 +44,8 @@ MAX_SLOPE = 1.0 / 3.0
 MIN_DEPTH = 0.3
 
 
-@dataclass(frozen=True)
-class FieldNotice:
-    """A validity note of the full-field engine (code, sentence, where)."""
-
-    code: str
-    text: str
-    point: str | None = None
-    level: str = "warning"
+#: The engine's validity notes are the project's one notice type (a str with a code).
+FieldNotice = Notice
 
 
 @dataclass
@@ -266,7 +261,7 @@ class HarbourModel:
     def _note(self, code, text, point=None, level="warning"):
         if (code, text) not in self._noted:
             self._noted.add((code, text))
-            self.notices.append(FieldNotice(code, text, point, level))
+            self.notices.append(Notice(code, text, point=point, level=level))
 
     def _segments(self):
         """Reflecting segments in the local frame with their K_r: (segs (n,2,2), kr)."""
