@@ -9,6 +9,7 @@ import sys
 from pathlib import Path
 
 import numpy as np
+import pyproj
 import pytest
 import xarray as xr
 
@@ -84,7 +85,7 @@ def test_points_csv_header_and_rows(small, capsys):
 
 
 def test_points_at_and_json(small, capsys):
-    code, out, _ = run(["points", str(small), "--at", "500150", "6300300", "--at", "500100", "6300150",
+    code, out, _ = run(["points", str(small), "--at", "500150", "6300120", "--at", "500100", "6300150",
                         "--json"], capsys)
     assert code == 0
     data = json.loads(out)
@@ -96,11 +97,17 @@ def test_points_at_and_json(small, capsys):
     # (basin side = local y > 0); convergence ~0 on the zone's central meridian.
     import harbor
     from harbor.study.scenario import load_scenario
-    conv = load_scenario(str(small)).site.convergence_deg
+    site = load_scenario(str(small)).site
+    conv = site.convergence_deg
     L = harbor.wavelength(7.0, 8.0)
     local_dir = 100.0 - conv
-    for row, (x, y) in zip(data["rows"], [(500150.0, 6300300.0), (500100.0, 6300150.0)]):
-        ref = abs(harbor.gap(x - 500100.0, 6300200.0 - y, L, local_dir, 60.0))
+    # UTM lengths are 0.9996 x ground lengths near the central meridian (Snyder 1987,
+    # p. 57); the waves see ground lengths (pyproj's scale factor at the site). Both
+    # points lie in the basin: on the seaward side K' sits near a node of the standing
+    # wave, where 0.04 % of scale moves it by 0.006.
+    k = pyproj.Proj("EPSG:32630").get_factors(*site.anchor_lonlat).meridional_scale
+    for row, (x, y) in zip(data["rows"], [(500150.0, 6300120.0), (500100.0, 6300150.0)]):
+        ref = abs(harbor.gap((x - 500100.0) / k, (6300200.0 - y) / k, L, local_dir, 60.0 / k))
         assert row["kd"] == pytest.approx(ref, abs=2e-3)
 
 

@@ -22,7 +22,8 @@ except ModuleNotFoundError:  # pragma: no cover - Python 3.10
 
 from harbor.errors import InputError
 from harbor.geometry.layout import Arm, Land, Layout, Point
-from harbor.geometry.site import Site, lonlat_problem, parse_crs
+from harbor.geometry.site import (SCALE_NOTE_ABOVE, Site, lonlat_anchor, lonlat_problem,
+                                  parse_crs)
 
 
 @dataclass(frozen=True)
@@ -64,12 +65,15 @@ class Sea:
 
 @dataclass(frozen=True)
 class GridSpec:
-    """The computation grid: spacing (m) and bounds ``(xmin, ymin, xmax, ymax)`` in the
+    """The computation grid: spacing and bounds ``(xmin, ymin, xmax, ymax)`` in the
     work frame (m); bounds are always filled in by the reader (a default is derived from
-    the layout and points when the file gives none)."""
+    the layout and points when the file gives none). ``ground_spacing`` is the
+    ``[grid] spacing`` as written, in ground metres; ``spacing`` is the same step in
+    work-frame units (ground spacing x the CRS's scale factor at the site)."""
 
     spacing: float
     bounds: tuple
+    ground_spacing: float | None = None
 
 
 @dataclass(frozen=True)
@@ -407,6 +411,9 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
                 raise r.err(f"must be four numbers [xmin, ymin, xmax, ymax], got "
                             f"{_show(b)}", "[grid]", "bounds")
             raw_bounds = [float(c) for c in b]
+            if lonlat and raw_bounds[0] > raw_bounds[2] and raw_bounds[1] < raw_bounds[3]:
+                # a lon/lat box across the antimeridian (xmin east of it, xmax west)
+                raw_bounds[2] += 360.0
             if not (raw_bounds[0] < raw_bounds[2] and raw_bounds[1] < raw_bounds[3]):
                 raise r.err("must be [xmin, ymin, xmax, ymax] with xmin < xmax and "
                             f"ymin < ymax, got {_show(b)}", "[grid]", "bounds")
@@ -416,8 +423,11 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
                   + [(w, "outline", a) for w, _, a in raw_lands]
                   + [(w, "at", a) for w, _, a, _ in raw_points])
     if raw_bounds is not None:
+        shown = list(raw_bounds)
+        if lonlat and shown[2] > 180.0:
+            shown[2] -= 360.0
         coord_sets.append(("[grid]", "bounds",
-                           np.array([raw_bounds[:2], raw_bounds[2:]], float)))
+                           np.array([shown[:2], shown[2:]], float)))
     if lonlat:
         for where, key, arr in coord_sets:
             for j, (lon, lat) in enumerate(arr):
@@ -436,7 +446,9 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
                             "\"EPSG:4326\" in [site] or give coordinates in the CRS",
                             where, "line")
 
-    anchor = np.concatenate([a for _, _, a, _ in raw_arms]).mean(axis=0)
+    verts = np.concatenate([a for _, _, a, _ in raw_arms])
+    # lon/lat vertices may straddle the antimeridian: average them unwrapped
+    anchor = lonlat_anchor(verts[:, 0], verts[:, 1]) if lonlat else verts.mean(axis=0)
     try:
         site = Site(crs_code, (float(anchor[0]), float(anchor[1])), depth, g)
     except InputError as e:
@@ -554,22 +566,30 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
         bounds = (float(xmin - pad), float(ymin - pad), float(xmax + pad),
                   float(ymax + pad))
     w, h = bounds[2] - bounds[0], bounds[3] - bounds[1]
+    # [grid] spacing is in ground metres; the grid is regular in the work frame, whose
+    # lengths are scale_factor times ground lengths (Web Mercator 1.41 at 45 N). Within
+    # SCALE_NOTE_ABOVE of 1 (UTM in its zone, national grids) the step is kept in CRS
+    # units, so that node coordinates stay round: the nodes are computed at their true
+    # ground positions either way, the step only sets how densely they sample the field.
+    k = float(site.scale_factor)
+    if abs(k - 1.0) <= SCALE_NOTE_ABOVE:
+        k = 1.0
     if spacing is None:
         from harbor.waves import wavelength
         lmin = float(np.min(wavelength(np.array([s.period for s in seas]), depth, g)))
-        spacing = max(_nice_floor(lmin / 10.0), _fitting_spacing(w, h))
+        spacing = max(_nice_floor(lmin / 10.0), _fitting_spacing(w / k, h / k))
     else:
-        if spacing > max(w, h):
+        if spacing * k > max(w, h):
             raise r.err(f"spacing {spacing:g} m is larger than the grid "
                         f"({w:.0f} m × {h:.0f} m)", "[grid]", "spacing")
-        n = grid_size(bounds, spacing)
+        n = grid_size(bounds, spacing * k)
         if n > MAX_GRID_POINTS:
-            fit = _fitting_spacing(w, h)
+            fit = _fitting_spacing(w / k, h / k)
             raise r.err(f"spacing {spacing:g} m over {w:.0f} m × {h:.0f} m gives "
                         f"{n:,} grid points, more than {MAX_GRID_POINTS:,}; a spacing "
                         f"of {fit:g} m or more would fit (or narrow the bounds)",
                         "[grid]", "spacing")
-    grid = GridSpec(spacing=float(spacing), bounds=bounds)
+    grid = GridSpec(spacing=float(spacing * k), bounds=bounds, ground_spacing=float(spacing))
 
     return Scenario(path=str(path) if path else "", title=title, site=site,
                     layout=layout, seas=tuple(seas), points=tuple(points), grid=grid)
