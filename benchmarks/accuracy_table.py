@@ -1,6 +1,7 @@
 """Measure the general-layout method against the full-field finite-element solution.
 
-    python3 benchmarks/accuracy_table.py [--ppw 10] [--only KIND ...] [--json FILE]
+    python3 benchmarks/accuracy_table.py [--ppw 10] [--only KIND ...] [--angles DEG ...]
+                                         [--json FILE]
 
 For every layout of the table in docs/accuracy.md sect. 3 (detached breakwaters, entrances
 between collinear, offset, overlapping and angled heads, dog-leg arms) and several
@@ -286,6 +287,8 @@ def main(argv=None):
     p.add_argument("--ppw", type=float, default=10.0, help="FE edges per wavelength")
     p.add_argument("--only", nargs="*", help="kinds: detached collinear offset overlap "
                                              "angled dogleg")
+    p.add_argument("--angles", nargs="*", type=float,
+                   help="only these approach angles (deg), to run a part of the table")
     p.add_argument("--json", help="also write the rows to this JSON file")
     p.add_argument("--save", help="directory for the sampled fields (.npz per case)")
     args = p.parse_args(argv)
@@ -299,6 +302,8 @@ def main(argv=None):
           "worst at (x, y), dist. to head/bend (L) | K' FE / general there |")
     print("|---|---:|---:|---:|---:|---:|---:|---:|---:|---|---|", flush=True)
     for kind, label, spec, angle in cases(args.only):
+        if args.angles and float(angle) not in args.angles:
+            continue
         r = measure(kind, label, spec, angle, args.ppw, args.save)
         rows.append(r)
         g = " (g)" if r["grazing"] else ""

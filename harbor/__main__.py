@@ -2,4 +2,7 @@
 
 from harbor.cli import main
 
-raise SystemExit(main())
+# Guarded: worker processes of an embedded Dask cluster are started with "spawn", which
+# imports the main module again in each child.
+if __name__ == "__main__":
+    raise SystemExit(main())

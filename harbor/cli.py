@@ -1,7 +1,9 @@
 """The ``harbor`` command: thin wrappers over the Python API (parse, call, print).
 
 Exit codes: 0 success; 2 bad input (one line on stderr naming the file, the key and the
-problem); 1 internal error (a short message asking for a report).
+problem); 1 internal error (a short message asking for a report); 3 the output location
+cannot be written (permission, read-only, in use by another run); 4 disk full; 130
+interrupted; 143 terminated (docs/errors.md).
 """
 
 from __future__ import annotations
@@ -23,8 +25,10 @@ MAP_EXAMPLE = """example:
   harbor map scenarios/demo.toml --out maps
   harbor map scenarios/demo.toml --sea "storm N" --show height --out maps
 
-Writes, for every sea state: map-<sea>.png, sheet-<sea>.pdf, isolines-<sea>.geojson;
-and grid.nc (NetCDF-CF) and points.csv. Nothing is written if any part fails.
+Writes, for every sea state: map-<sea>.png, sheet-<sea>.pdf, isolines-<sea>.geojson,
+kd-<sea>.tif and height-<sea>.tif (Cloud-Optimised GeoTIFF); and grid.nc (NetCDF-CF),
+points.csv and harbor.gpkg (isolines, points, arms, land in the scenario CRS). Nothing
+is written if any part fails.
 """
 
 POINTS_EXAMPLE = """example:
@@ -32,7 +36,9 @@ POINTS_EXAMPLE = """example:
   harbor points scenarios/demo.toml --at 302900 4986150 --at 302980 4986100 --sea "swell NW"
   harbor points scenarios/demo.toml --json
 
-CSV columns: sea,point,x,y,kd,height (+ period_ratio when a random sea is listed);
+CSV columns: sea,point,x,y,kd,height (+ period_ratio when a random sea is listed), then
+limit,ok,valid (valid is false where the method is outside its measured validity);
+warnings and the caution go to stderr;
 x, y in the scenario's CRS (easting or longitude first).
 """
 
@@ -57,6 +63,44 @@ DEMO_EXAMPLE = """example:
 
 Runs the bundled demo scenario (Port Tellivar, an invented harbour) and writes every
 output of `harbor map` into the folder, then prints the berth table.
+"""
+
+
+SWEEP_EXAMPLE = """example:
+  harbor sweep scenarios/demo.toml --arm "west arm" --move -40 60 10 --out screening
+  harbor sweep scenarios/demo.toml --arm "east arm" --move 0 50 5 --sea "storm N"
+
+Moves the free head of the arm along its end segment by each distance from MIN to MAX
+in steps of STEP metres (positive lengthens the arm and narrows the entrance), solves
+every sea state (or --sea) at the scenario's points, and writes sweep-<arm>.csv
+(columns move,entrance_width,sea,point,kd,height,limit,ok,valid) and sweep-<arm>.png. Moves
+that would make arms cross, put the head in land or shorten the arm past the other end
+of its end segment are reported and skipped.
+"""
+
+CLIMATE_EXAMPLE = """example:
+  harbor climate scenarios/demo.toml --table scenarios/demo-climate.csv --out screening
+  harbor climate scenarios/demo.toml --table scenarios/demo-climate.csv \\
+      --arm "west arm" --move 30 --out screening-60m
+
+The table is CSV with a header row: height,period,from,percent[,spreading]
+(H1/3 in m, T1/3 in s, direction the waves come from in degrees true, percentage of
+time; s_max, default 10). Each row is a directional random sea. Writes downtime.csv
+(point,limit,total and one column per 30-degree sector, by its centre 000 ... 330),
+climate-rows.csv (every row at every point) and downtime.png. With --arm and --move
+the head of that arm is first moved as in `harbor sweep`.
+"""
+
+COMPARE_EXAMPLE = """several scenarios (layout alternatives):
+  harbor climate layout-a.toml layout-b.toml layout-c.toml --table climate.csv --out cmp
+  harbor climate layout-*.toml --table climate.csv --scheduler tcp://head-node:8786
+  harbor climate harbour-with-alternatives.toml --table climate.csv --out cmp
+
+With two or more scenarios (or one whose file has [[alternative]] tables: variants of
+its layout, see docs/screening.md), writes alternatives.csv (alternative,point,limit,
+total and one column per sector), alternatives-rows.csv (every row at every point under every
+alternative) and alternatives.png (alternatives side by side per berth). Alternatives
+are named by their file names; berths are matched by their point names.
 """
 
 
@@ -91,38 +135,51 @@ def _load(path):
 def _select_sea(scenario, name):
     if name is None:
         return None
-    names = [s.name for s in scenario.seas]
-    if name not in names:
-        import difflib
-
-        near = difflib.get_close_matches(name, names, n=1)
-        hint = f" (did you mean '{near[0]}'?)" if near else f" (known: {', '.join(names)})"
-        raise InputError(f"no sea state named '{name}'{hint}", file=scenario.path, key="--sea")
-    return name
+    return scenario.sea(name, key="--sea").name
 
 
 def cmd_check(args):
-    from harbor.solver.assemble import solve
+    from harbor.solver.assemble import grid_coordinates, notices, solve
 
     sc = _load(args.scenario)
     ds = solve(sc, grid=False)
-    warnings = [w for w in ds.attrs["warnings"].split("\n") if w]
     site = sc.site
     print(f"{args.scenario}: valid — {len(sc.layout.arms)} arm(s), {len(sc.layout.lands)} land "
           f"polygon(s), {len(sc.seas)} sea state(s), {len(sc.points)} point(s)")
     print(f"  CRS {site.crs_code}; meridian convergence at the site {site.convergence_deg:+.3f} deg "
           f"(grid bearing = true bearing - convergence); depth {site.depth:g} m")
-    if sc.grid is not None:
-        from harbor.solver.assemble import grid_coordinates
+    from harbor.geometry.entrance import entrance_width
 
+    width = entrance_width(sc.layout)
+    if width is not None:
+        print(f"  entrance width {width:.1f} m (narrowest water passage between the structures)")
+    if sc.grid is not None:
         gx, gy = grid_coordinates(sc.grid)
         print(f"  grid {gx.size} x {gy.size} points at {sc.grid.spacing:g} m")
     print("methods:")
     for name, method, L in zip(ds.sea.values, ds.sea_method.values, ds.sea_wavelength.values):
         print(f"  - {name}: {method} (L = {L:.1f} m)")
-    _print_warnings(warnings)
+    _print_notices(ds, notices)
     print(f"note: {CAUTION_SHORT}")
     return 0
+
+
+def _print_notices(ds, notices, file=None):
+    """The warnings of a result, grouped: every sea state first, then each one's own."""
+    items = list(dict.fromkeys(notices(ds)))
+    if not items:
+        return
+    file = file or sys.stdout
+    print("warnings:", file=file)
+    for n in items:
+        if n.sea is None:
+            print(f"  - {n.text}", file=file)
+    for s in [str(v) for v in ds.sea.values]:
+        own = [n for n in items if n.sea == s]
+        if own:
+            print(f"  sea state '{s}':", file=file)
+            for n in own:
+                print(f"    - {n.text}", file=file)
 
 
 def _print_warnings(warnings):
@@ -145,86 +202,54 @@ def _parse_at(values):
     return pts
 
 
-def points_table(scenario, at=None, sea=None, method="auto"):
-    """Rows of ``harbor points``: dicts with sea, point, x, y, kd, height[, period_ratio].
-
-    Parameters
-    ----------
-    scenario : harbor.study.scenario.Scenario
-    at : sequence of (name, x, y), optional
-        Points in the scenario's CRS; default the scenario's named points.
-    sea : str, optional
-        One sea state's name.
-    method : str
-        Method override (see :func:`harbor.solve`).
-
-    Returns
-    -------
-    rows : list of dict
-    has_random : bool
-    """
-    from harbor.solver.assemble import solve
-    from harbor.study.scenario import Scenario
-
-    if at:
-        sc = Scenario(path=scenario.path, title=scenario.title, site=scenario.site,
-                      layout=scenario.layout, seas=scenario.seas, points=(), grid=scenario.grid)
-        _check_points(scenario, at)
-    else:
-        sc = scenario
-    ds = solve(sc, sea=sea, points=at, grid=False, method=method)
-    site = scenario.site
-    cx, cy = site.from_work(ds.point_x.values, ds.point_y.values)
-    has_random = bool((ds.sea_kind.values == "random").any())
-    rows = []
-    for i, s in enumerate(ds.sea.values):
-        for j, p in enumerate(ds.point.values):
-            row = dict(sea=str(s), point=str(p), x=float(cx[j]), y=float(cy[j]),
-                       kd=float(ds.point_kd.values[i, j]), height=float(ds.point_height.values[i, j]))
-            if has_random:
-                r = float(ds.point_period_ratio.values[i, j])
-                row["period_ratio"] = None if math.isnan(r) else r
-            rows.append(row)
-    return rows, has_random
-
-
-def _check_points(scenario, at):
-    import numpy as np
-
-    from harbor.geometry.site import lonlat_problem
-
-    site = scenario.site
-    for name, x, y in at:
-        if site.is_lonlat:
-            prob = lonlat_problem(x, y)
-            if prob:
-                raise InputError(prob, file=scenario.path, key="--at")
-        wx, wy = site.to_work(np.array([x]), np.array([y]))
-        if scenario.layout.in_land(wx, wy)[0]:
-            raise InputError(f"point {x:g} {y:g} lies on land", file=scenario.path, key="--at")
+#: CSV of ``harbor points``: the contract columns, then the verdict columns.
+POINTS_COLUMNS = ("sea", "point", "x", "y", "kd", "height")
+VERDICT_COLUMNS = ("limit", "ok", "valid")
 
 
 def cmd_points(args):
+    from harbor.outputs.read import coordinate_digits
+    from harbor.solver.assemble import notices, points_table
+
     sc = _load(args.scenario)
     sea = _select_sea(sc, args.sea)
     at = _parse_at(args.at)
-    rows, has_random = points_table(sc, at=at, sea=sea, method=args.method)
+    rows, ds = points_table(sc, at=at, sea=sea, method=args.method)
+    has_random = bool((ds.sea_kind.values == "random").any())
+    # the warnings and the caution go to stderr, so stdout stays machine-readable
+    _print_notices(ds, notices, file=sys.stderr)
+    print(f"note: {CAUTION_SHORT}", file=sys.stderr)
     if args.json:
-        print(json.dumps({"crs": sc.site.crs_code, "rows": rows, "cautions": caution_text()},
-                         indent=2))
+        items = list(dict.fromkeys(notices(ds)))
+        print(json.dumps({
+            "crs": sc.site.crs_code,
+            "method": {str(s): str(m) for s, m in zip(ds.sea.values, ds.sea_method.values)},
+            "rows": rows,
+            "warnings": [{"code": n.code, "text": n.text, "sea": n.sea, "point": n.point,
+                          "level": n.level} for n in items],
+            "cautions": caution_text()}, indent=2))
         return 0
-    cols = ["sea", "point", "x", "y", "kd", "height"] + (["period_ratio"] if has_random else [])
+    cols = list(POINTS_COLUMNS) + (["period_ratio"] if has_random else []) + list(VERDICT_COLUMNS)
     import csv
 
+    digits = coordinate_digits(ds)
     w = csv.writer(sys.stdout, lineterminator="\n")
     w.writerow(cols)
     for r in rows:
         out = []
         for c in cols:
             v = r.get(c)
-            if isinstance(v, float):
-                out.append(f"{v:.4f}" if c in ("kd", "period_ratio") else
-                           (f"{v:.3f}" if c == "height" else f"{v:.8g}" if sc.site.is_lonlat else f"{v:.2f}"))
+            if isinstance(v, bool):
+                out.append("true" if v else "false")
+            elif isinstance(v, float):
+                if not math.isfinite(v):
+                    out.append("")
+                elif c in ("kd", "period_ratio"):
+                    out.append(f"{v:.4f}")
+                elif c in ("height", "limit"):
+                    out.append(f"{v:.3f}")
+                else:
+                    out.append(f"{v:.{digits}f}")
             else:
                 out.append("" if v is None else v)
         w.writerow(out)
@@ -236,12 +261,12 @@ def _run_map(scenario, out, sea=None, show="kd", method="auto", quiet=False):
     from harbor.solver.assemble import solve
 
     ds = solve(scenario, sea=sea, method=method, progress=_progress_printer(quiet))
-    written = write_all(ds, scenario, out, show=show)
+    written = write_all(ds, out, show=show)
+    # the table ends with the warnings (grouped by sea state) and the cautions: once
     print(point_table(ds))
-    print(f"\nwrote {len(written)} files to {out}:")
+    print(f"wrote {len(written)} files to {out}:")
     for p in written:
         print(f"  {p}")
-    _print_warnings([w for w in ds.attrs["warnings"].split("\n") if w])
     return 0
 
 
@@ -271,23 +296,8 @@ def cmd_diagram(args):
     if not (0 < args.direction < 180):
         raise InputError(f"--direction must be strictly between 0 and 180 degrees, got {args.direction:g}",
                          key="--direction")
-    if args.width is not None and not args.width > 0:
-        raise InputError(f"--width must be positive, got {args.width:g}", key="--width")
-    if args.spreading <= 0:
+    if not args.spreading > 0:
         raise InputError(f"--spreading must be positive, got {args.spreading:g}", key="--spreading")
-    ext = args.extent
-    if ext is None:
-        half = 4.0 if args.case == "semi-infinite" else max(4.0, (args.width or 0) / 2 + 3)
-        ext = (-half, -2.0, half, 8.0)
-    if not (ext[0] < ext[2] and ext[1] < ext[3]):
-        raise InputError("--extent must be XMIN YMIN XMAX YMAX with XMIN < XMAX and YMIN < YMAX",
-                         key="--extent")
-    res = args.resolution or max((ext[2] - ext[0]) / 200.0, 0.02)
-    if args.random and res < 0.05:
-        res = 0.05
-    ds = diagram_field(args.case, args.direction, width=args.width, extent=tuple(ext),
-                       resolution=res, kind="random" if args.random else "regular",
-                       spreading=args.spreading)
     out = args.out
     suffix = os.path.splitext(out)[1].lower()
     if suffix not in (".png", ".pdf"):
@@ -295,6 +305,13 @@ def cmd_diagram(args):
     parent = os.path.dirname(os.path.abspath(out))
     if not os.path.isdir(parent):
         raise InputError(f"folder '{parent}' does not exist", key="--out")
+    try:
+        ds = diagram_field(args.case, args.direction, width=args.width, extent=args.extent,
+                           resolution=args.resolution,
+                           kind="random" if args.random else "regular",
+                           spreading=args.spreading)
+    except InputError as e:   # name the option, not the function's argument
+        raise InputError(e.problem, key=f"--{e.key}" if e.key else None) from None
     plot_diagram(ds, out)
     print(f"wrote {out} ({ds.attrs['method']})")
     print(f"note: {CAUTION_SHORT}")
@@ -323,8 +340,6 @@ def add_sweep_parser(subparsers):
     argparse.ArgumentParser
         The ``sweep`` parser (its ``func`` default is :func:`cmd_sweep`).
     """
-    from harbor.study.sweep import SWEEP_EXAMPLE
-
     sp = subparsers.add_parser(
         "sweep", help="entrance-width sweep: move one head, heights at the points",
         epilog=SWEEP_EXAMPLE + "\n" + EPILOG_TAIL,
@@ -357,7 +372,8 @@ def cmd_sweep(args):
     int
         0; user mistakes raise :class:`harbor.errors.InputError`.
     """
-    from harbor.study.sweep import find_arm, move_range, sweep, sweep_text, verdict, write_sweep
+    from harbor.outputs.studies import sweep_text, write_sweep
+    from harbor.study.sweep import find_arm, move_range, sweep
 
     sc = _load(args.scenario)
     sea = _select_sea(sc, args.sea)
@@ -367,15 +383,15 @@ def cmd_sweep(args):
                   progress=_progress_printer(args.quiet))
     for m, why in table.attrs["skipped"]:
         print(f"skipped move {m:+g} m: {why}")
-    if table.empty:
+    if table.sizes["move"] == 0:
         raise InputError("every move was skipped; nothing to write", file=sc.path,
                          key="--move")
     written = write_sweep(table, args.out)
-    widths = table.groupby("move")["entrance_width"].first()
+    widths = table["entrance_width"].values
     print(f"{len(widths)} position(s) of the head of '{args.arm}', entrance width "
           f"{widths.min():.1f} to {widths.max():.1f} m")
     print(sweep_text(table))
-    print(verdict(table))
+    print(table.attrs["verdict"])
     print(f"wrote {', '.join(str(p) for p in written)}")
     _print_warnings(table.attrs["warnings"])
     print(f"note: {CAUTION_SHORT}")
@@ -395,13 +411,13 @@ def add_climate_parser(subparsers):
     argparse.ArgumentParser
         The ``climate`` parser (its ``func`` default is :func:`cmd_climate`).
     """
-    from harbor.study.climate import CLIMATE_EXAMPLE
-
     sp = subparsers.add_parser(
         "climate", help="berth downtime (%% of time above the limit) from a wave climate table",
-        epilog=CLIMATE_EXAMPLE + "\n" + EPILOG_TAIL,
+        epilog=CLIMATE_EXAMPLE + "\n" + COMPARE_EXAMPLE + "\n" + EPILOG_TAIL,
         formatter_class=argparse.RawDescriptionHelpFormatter)
-    sp.add_argument("scenario", help="scenario file (TOML); its points' limits are used")
+    sp.add_argument("scenario", nargs="+",
+                    help="scenario file(s) (TOML); its points' limits are used; several "
+                         "files are compared as layout alternatives")
     sp.add_argument("--table", required=True, metavar="FILE",
                     help="climate table (CSV: height,period,from,percent[,spreading])")
     sp.add_argument("--arm", metavar="NAME",
@@ -412,8 +428,19 @@ def add_climate_parser(subparsers):
     sp.add_argument("--out", default="harbor-out", metavar="DIR",
                     help="output folder (default harbor-out)")
     sp.add_argument("--workers", type=int, metavar="N",
-                    help="threads to use (default: one per core)")
+                    help="threads or worker processes at most (default: one per core)")
+    sp.add_argument("--executor", choices=["auto", "serial", "threads", "local"],
+                    default="auto",
+                    help="where the solves run: auto (default: threads, or an embedded "
+                         "Dask cluster for long runs), serial, threads, local (embedded "
+                         "Dask cluster)")
+    sp.add_argument("--scheduler", metavar="ADDRESS",
+                    help="an existing Dask scheduler, e.g. tcp://head-node:8786 (default: "
+                         "the environment variable HARBOR_SCHEDULER; see docs/cluster.md)")
     sp.add_argument("--quiet", action="store_true", help="no progress bar")
+    sp.add_argument("--max-cases", type=int, metavar="N",
+                    help="most distinct (period, direction, spreading) cases to solve "
+                         "(default 2000; the count and a time estimate are printed first)")
     _add_method_option(sp)
     sp.set_defaults(func=cmd_climate)
     return sp
@@ -432,12 +459,18 @@ def cmd_climate(args):
     int
         0; user mistakes raise :class:`harbor.errors.InputError`.
     """
-    from harbor.geometry.entrance import nearest_heads
-    from harbor.study.climate import (climate_downtime, downtime_text, percent_warning,
-                                      read_climate, write_climate)
-    from harbor.study.sweep import MoveRejected, move_head
+    from harbor.outputs.studies import downtime_text, write_climate
+    from harbor.study.climate import (check_case_count, climate_downtime, duplicate_warning,
+                                      percent_warning, read_climate)
 
-    sc = _load(args.scenario)
+    paths = args.scenario if isinstance(args.scenario, list) else [args.scenario]
+    if len(paths) > 1:
+        return _climate_alternatives(args, paths)
+    sc = _load(paths[0])
+    from harbor.study.alternatives import has_alternatives
+
+    if has_alternatives(paths[0]):
+        return _climate_alternatives(args, paths)
     if (args.arm is None) != (args.move is None):
         raise InputError("--arm and --move go together", key="--arm" if args.arm is None
                          else "--move")
@@ -447,30 +480,171 @@ def cmd_climate(args):
     pw = percent_warning(table)
     if pw:
         print(f"warning: {pw}")
+    dw = duplicate_warning(table)
+    if dw:
+        print(f"warning: {dw}")
+    print(check_case_count(table, getattr(args, "max_cases", None)))
+    try:
+        with _climate_executor(args, table, 1) as ex:
+            res = climate_downtime(sc, table, method=args.method, workers=args.workers,
+                                   arm=args.arm, move=args.move, executor=ex)
+    except InputError as e:
+        if e.key in ("arm", "move"):  # name the option the user typed
+            raise InputError(e.problem, file=e.file, key=f"--{e.key}") from None
+        raise
+    width = res.attrs["entrance_width"]
     title = None
     if args.arm is not None:
-        try:
-            sc, width = move_head(sc, args.arm, args.move)
-        except MoveRejected as e:
-            raise InputError(f"cannot move the head of '{args.arm}' by {args.move:g} m: {e}",
-                             file=sc.path, key="--move") from None
         print(f"head of '{args.arm}' moved {args.move:+g} m: entrance width {width:.1f} m")
         title = f"Berth downtime, head of '{args.arm}' moved {args.move:+g} m " \
                 f"(entrance {width:.1f} m)"
-    else:
-        ent = nearest_heads(sc.layout)
-        if ent is not None:
-            print(f"entrance between the nearest heads: {ent.width:.1f} m")
-            title = f"Berth downtime by wave direction (entrance {ent.width:.1f} m)"
-    res = climate_downtime(sc, table, method=args.method, workers=args.workers,
-                           progress=_progress_printer(args.quiet))
+    elif width is not None:
+        print(f"entrance width (narrowest passage): {width:.1f} m")
+        title = f"Berth downtime by wave direction (entrance {width:.1f} m)"
     written = write_climate(res, args.out, title=title)
-    print(f"{res.downtime.attrs['table_rows']} climate rows, "
-          f"{res.downtime.attrs['cases']} distinct (period, direction, spreading) cases")
     print(downtime_text(res))
     print(f"wrote {', '.join(str(p) for p in written)}")
-    _print_warnings([w for w in res.warnings if w != pw])
+    _print_warnings([w for w in res.attrs["warnings"] if w != pw])
     print(f"note: {CAUTION_SHORT}")
+    return 0
+
+
+def _climate_executor(args, table, n_alternatives):
+    """The executor of ``harbor climate`` (connects to a scheduler before any solve)."""
+    from harbor.study.alternatives import count_tasks, table_estimate
+    from harbor.study.executor import make_executor
+
+    display = not getattr(args, "quiet", False) and sys.stderr.isatty()
+    return make_executor(getattr(args, "executor", "auto"),
+                         scheduler=getattr(args, "scheduler", None), workers=args.workers,
+                         n_tasks=count_tasks(table, n_alternatives),
+                         estimate=table_estimate(table), display=display)
+
+
+def _climate_alternatives(args, paths):
+    """``harbor climate A.toml B.toml ...``: compare layout alternatives."""
+    from harbor.outputs.alternatives import alternatives_text, write_alternatives
+    from harbor.study.alternatives import compare_alternatives
+    from harbor.study.climate import percent_warning, read_climate
+
+    if args.arm is not None or args.move is not None:
+        raise InputError("--arm and --move apply to one scenario; for several "
+                         "alternatives give each layout its own scenario file",
+                         key="--arm" if args.arm is not None else "--move")
+    from harbor.study.alternatives import load_alternatives
+
+    scs, names = [], []
+    for p in paths:
+        more, their = load_alternatives(p)
+        scs.extend(more)
+        names.extend(their)
+    if len(set(names)) != len(names):            # the same file name in two folders
+        names = None
+    table = read_climate(args.table)
+    pw = percent_warning(table)
+    if pw:
+        print(f"warning: {pw}")
+    with _climate_executor(args, table, len(scs)) as ex:
+        print(f"running on: {ex.describe()}")
+        ds = compare_alternatives(scs, table, method=args.method, executor=ex, names=names)
+    written = write_alternatives(ds, args.out)
+    print(f"{ds.sizes['alternative']} alternatives x {ds.sizes['row']} climate rows: "
+          f"{ds.attrs['cases']} distinct solves in {ds.attrs['tasks']} tasks")
+    print(alternatives_text(ds))
+    print(f"wrote {', '.join(str(p) for p in written)}")
+    _print_warnings([w for w in ds.attrs["warnings"] if w != pw])
+    print(f"note: {CAUTION_SHORT}")
+    return 0
+
+
+IMPORT_EXAMPLE = """examples:
+  harbor import layout.gpkg --arms breakwaters --land shore --points berths \\
+      --limit-field limit --depth 9 --out harbour.toml
+  harbor import drawing.dxf --crs EPSG:32630 --arms BW --land COAST --points BERTHS \\
+      --chord 0.05 --out harbour.toml
+  harbor import layout.geojson --arms kind=arm --land kind=land --points kind=berth \\
+      --reference --out harbour.toml
+
+A selector is LAYER, LAYER:FIELD=VALUE or FIELD=VALUE. GIS files (GeoPackage, Shapefile,
+GeoJSON): layers and attributes. DXF: drawing layers (wildcards * and ?); names, limits
+and reflection coefficients from block attributes (points) or extended data of
+application HARBOR ("name=west arm") on the linework. The scenario written passes
+`harbor check`; its sea state and grid are placeholders to replace.
+"""
+
+
+def add_import_parser(subparsers):
+    """Add ``harbor import`` to the command's subparsers.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        From ``ArgumentParser.add_subparsers``.
+
+    Returns
+    -------
+    argparse.ArgumentParser
+        The ``import`` parser (its ``func`` default is :func:`cmd_import`).
+    """
+    # the default is harbor.study.layout_files.DEFAULT_CHORD, written out here so that
+    # building the parser imports nothing heavy (start-up time)
+    sp = subparsers.add_parser(
+        "import", help="write a scenario from a GIS layer or a DXF drawing",
+        epilog=IMPORT_EXAMPLE + "\n" + EPILOG_TAIL,
+        formatter_class=argparse.RawDescriptionHelpFormatter)
+    sp.add_argument("file", help="GeoPackage, Shapefile, GeoJSON or DXF file")
+    sp.add_argument("--arms", metavar="SELECTOR", help="where the breakwater arms are")
+    sp.add_argument("--land", metavar="SELECTOR", help="where the land polygons are")
+    sp.add_argument("--points", metavar="SELECTOR", help="where the points of interest are")
+    sp.add_argument("--name-field", default="name", metavar="FIELD",
+                    help="attribute holding names (default name; DXF: also 'layer')")
+    sp.add_argument("--limit-field", metavar="FIELD",
+                    help="attribute holding the points' allowable wave height (m)")
+    sp.add_argument("--reflection-field", metavar="FIELD",
+                    help="attribute holding reflection coefficients (0-1) of arms and land")
+    sp.add_argument("--crs", metavar="CRS",
+                    help="CRS of the coordinates when the file has none (e.g. EPSG:32630)")
+    sp.add_argument("--chord", type=float, default=None, metavar="M",
+                    help="chord tolerance for DXF curves, m (default 0.1)")
+    sp.add_argument("--depth", type=float, metavar="M",
+                    help="water depth, m (default: a marked placeholder)")
+    sp.add_argument("--title", help="scenario title")
+    sp.add_argument("--reference", action="store_true",
+                    help="refer to the file instead of copying its vertices")
+    sp.add_argument("--out", required=True, metavar="FILE", help="scenario file to write")
+    sp.add_argument("--force", action="store_true", help="overwrite --out if it exists")
+    sp.set_defaults(func=cmd_import)
+    return sp
+
+
+def cmd_import(args):
+    """Run ``harbor import``: call :func:`harbor.study.layout_files.import_layout`.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        From the parser of :func:`add_import_parser`.
+
+    Returns
+    -------
+    int
+        0; user mistakes raise :class:`harbor.errors.InputError`.
+    """
+    from harbor.study.layout_files import DEFAULT_CHORD, import_layout
+
+    if args.arms is None and args.land is None and args.points is None:
+        raise InputError("give at least one of --arms, --land, --points", key="--arms")
+    out, sc = import_layout(args.file, args.out, arms=args.arms, land=args.land,
+                            points=args.points, name_field=args.name_field,
+                            reflection_field=args.reflection_field,
+                            limit_field=args.limit_field, crs=args.crs,
+                            chord=DEFAULT_CHORD if args.chord is None else args.chord,
+                            depth=args.depth, title=args.title, reference=args.reference,
+                            force=args.force)
+    print(f"wrote {out}: {len(sc.layout.arms)} arm(s), {len(sc.layout.lands)} land "
+          f"polygon(s), {len(sc.points)} point(s) in {sc.site.crs_code}")
+    print("the sea state, the grid spacing and (unless --depth) the depth are "
+          "PLACEHOLDERS: edit them, then run 'harbor check'")
     return 0
 
 
@@ -487,7 +661,7 @@ def build_parser():
 
     method_opt = _add_method_option
 
-    sp = sub.add_parser("map", help="sheltering maps, PDF sheets, GeoJSON, NetCDF and CSV for every sea state",
+    sp = sub.add_parser("map", help="sheltering maps, PDF sheets, GeoJSON, NetCDF, CSV, GeoTIFF and GeoPackage for every sea state",
                         epilog=MAP_EXAMPLE + "\n" + EPILOG_TAIL, formatter_class=fmt)
     sp.add_argument("scenario", help="scenario file (TOML)")
     sp.add_argument("--out", default="harbor-out", help="output folder (default harbor-out)")
@@ -537,30 +711,90 @@ def build_parser():
 
     add_sweep_parser(sub)
     add_climate_parser(sub)
+    add_import_parser(sub)
     return p
 
 
 def main(argv=None):
     """Entry point of the ``harbor`` command; returns the exit code."""
+    from harbor.errors import MachineError, Terminated, machine_fault
+    from harbor.outputs._atomic import claim_output
+
     parser = build_parser()
     args = parser.parse_args(argv)
+    signals = []
+    restore = _on_signals_raise(Terminated, signals)
     try:
-        return int(args.func(args) or 0)
+        out = getattr(args, "out", None)
+        if out is None:
+            return int(args.func(args) or 0)
+        with claim_output(out, "file" if args.command in ("diagram", "import") else "dir"):
+            return int(args.func(args) or 0)
     except InputError as e:
         print(f"harbor: {e.line()}", file=sys.stderr)
         return 2
+    except MachineError as e:
+        print(f"harbor: {e.line()}", file=sys.stderr)
+        return e.exit_code
+    except Terminated:
+        print("harbor: terminated (SIGTERM); no output written", file=sys.stderr)
+        return 143
     except KeyboardInterrupt:
         print("harbor: interrupted; no output written", file=sys.stderr)
         return 130
     except BrokenPipeError:
         return 0
-    except Exception as e:  # pragma: no cover - internal errors
-        print(f"harbor: internal error ({type(e).__name__}: {e}). This is a bug in harbor "
-              f"{__version__}; please report it with the command and the scenario file.",
-              file=sys.stderr)
-        if os.environ.get("HARBOR_DEBUG"):
-            raise
-        return 1
+    except Exception as e:
+        if signals:
+            # the signal's exception was raised inside code that turned it into another
+            # one (an extension module being imported reports "initialization failed")
+            term = signals[-1] != 2
+            print(f"harbor: {'terminated (SIGTERM)' if term else 'interrupted'}; no output "
+                  "written", file=sys.stderr)
+            return 143 if term else 130
+        fault = machine_fault(e) if isinstance(e, OSError) else None
+        if fault is None or os.environ.get("HARBOR_DEBUG"):
+            return _internal_error(e)
+        print(f"harbor: {fault.line()}", file=sys.stderr)
+        return fault.exit_code
+    finally:
+        restore()
+
+
+def _on_signals_raise(exc_type, seen):
+    """Make SIGTERM raise ``exc_type`` and SIGINT ``KeyboardInterrupt`` in the main thread
+    (clean-ups run as for Ctrl-C), noting each signal in ``seen``; return the function that
+    restores the previous handlers."""
+    import signal
+    import threading
+
+    if threading.current_thread() is not threading.main_thread():
+        return lambda: None
+
+    def handler(signum, frame):
+        seen.append(int(signum))
+        raise exc_type() if signum == signal.SIGTERM else KeyboardInterrupt()
+
+    old_term = signal.signal(signal.SIGTERM, handler)
+    old_int = None
+    if signal.getsignal(signal.SIGINT) is signal.default_int_handler:
+        old_int = signal.signal(signal.SIGINT, handler)
+
+    def restore():
+        signal.signal(signal.SIGTERM, old_term)
+        if old_int is not None:
+            signal.signal(signal.SIGINT, old_int)
+
+    return restore
+
+
+def _internal_error(e):  # pragma: no cover - internal errors
+    print(f"harbor: internal error ({type(e).__name__}: {e}). This is a bug in harbor "
+          f"{__version__}; please report it with the command and the scenario file.",
+          file=sys.stderr)
+    if os.environ.get("HARBOR_DEBUG"):
+        raise e
+    return 1
 
 
 if __name__ == "__main__":

@@ -42,3 +42,77 @@ class InputError(ValueError):
             parts.append(f"key '{self.key}'")
         parts.append(self.problem)
         return ": ".join(parts)
+
+
+#: Exit codes of the ``harbor`` command (documented in docs/errors.md).
+EXIT_OK = 0
+EXIT_INTERNAL = 1
+EXIT_INPUT = 2
+EXIT_CANNOT_WRITE = 3
+EXIT_DISK_FULL = 4
+EXIT_INTERRUPTED = 130
+EXIT_TERMINATED = 143
+
+
+class MachineError(Exception):
+    """The machine, not the user's input, stopped the run (no permission, read-only file
+    system, disk full, output folder in use by another run).
+
+    The command line prints its one line and exits with :attr:`exit_code`
+    (:data:`EXIT_CANNOT_WRITE` or :data:`EXIT_DISK_FULL`); nothing is written.
+
+    Parameters
+    ----------
+    problem : str
+        What went wrong, in plain words.
+    file : str, optional
+        The file or folder concerned.
+    exit_code : int
+        The command's exit code for this fault.
+    """
+
+    def __init__(self, problem: str, file: str | None = None,
+                 exit_code: int = EXIT_CANNOT_WRITE):
+        self.problem = problem
+        self.file = file
+        self.exit_code = int(exit_code)
+        super().__init__(self.line())
+
+    def line(self) -> str:
+        """Return the one-line message: ``file: problem``."""
+        return f"{self.file}: {self.problem}" if self.file else self.problem
+
+
+class Terminated(KeyboardInterrupt):
+    """Raised in the main thread when the process receives SIGTERM, so that every
+    clean-up that runs for Ctrl-C (staging folders, temporary files) runs for it too."""
+
+
+def machine_fault(exc: BaseException) -> MachineError | None:
+    """The :class:`MachineError` an operating-system error stands for, if any.
+
+    Parameters
+    ----------
+    exc : BaseException
+        Any exception.
+
+    Returns
+    -------
+    MachineError or None
+        For :class:`OSError` with errno ENOSPC or EDQUOT (disk full, exit
+        :data:`EXIT_DISK_FULL`), EACCES, EPERM or EROFS (no permission or read-only file
+        system, exit :data:`EXIT_CANNOT_WRITE`); None for anything else.
+    """
+    import errno
+
+    if not isinstance(exc, OSError) or exc.errno is None:
+        return None
+    name = exc.filename if exc.filename is not None else None
+    if exc.errno in (errno.ENOSPC, getattr(errno, "EDQUOT", -1)):
+        return MachineError("no space left on the device (disk full or quota reached); "
+                            "nothing was written", file=name, exit_code=EXIT_DISK_FULL)
+    if exc.errno in (errno.EACCES, errno.EPERM):
+        return MachineError("permission denied; nothing was written", file=name)
+    if exc.errno == errno.EROFS:
+        return MachineError("read-only file system; nothing was written", file=name)
+    return None

@@ -44,3 +44,13 @@ def spread_points(L, n_r=(0.05, 0.6, 3.0, 17.0), n_theta=16):
         for th in np.linspace(0.1, 2 * np.pi - 0.1, n_theta):
             pts.append((rr * L * np.cos(th), rr * L * np.sin(th)))
     return np.array(pts)
+
+
+@pytest.fixture(scope="session")
+def demo_scenario():
+    """The bundled demo scenario (an invented harbour), loaded once."""
+    from pathlib import Path
+
+    import harbor
+
+    return harbor.load_scenario(Path(__file__).resolve().parents[1] / "scenarios" / "demo.toml")

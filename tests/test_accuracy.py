@@ -50,12 +50,13 @@ def _lee_error(arms, direction_deg, window, region):
 # --- the rules against the full-field solution -------------------------------------------
 
 def test_dog_leg_from_the_bad_side_warns_and_is_off():
-    # Table row "dog-leg +60 deg, head leg 1 L", 90 deg: median |dK'| 0.06, 57 % of the
-    # lee off by more than 0.05 (benchmarks/accuracy_table.py, FE at 10 per L).
+    # Table row "dog-leg +60 deg, head leg 1 L", 90 deg: median |dK'| 0.026, 19 % of the
+    # lee off by more than 0.05 with the bend as a wedge and double diffraction (57 %
+    # with half-plane terms; benchmarks/accuracy_table.py, FE at 10 per L).
     arm = Arm("north mole", _line((-6.0, 0.0), (0.0, 0.0),
                                   (np.cos(np.radians(60)), np.sin(np.radians(60)))))
     dk = _lee_error([arm], 90.0, (-3.0, 0.1, 3.5, 4.0), (-6.5, -1.0, 4.0, 4.5))
-    assert np.mean(dk > 0.05) > 0.3, np.mean(dk > 0.05)
+    assert np.mean(dk > 0.05) > 0.1, np.mean(dk > 0.05)
     warn = accuracy_warnings(Layout(arms=(arm,)), L)
     assert any("'north mole'" in w and "bends by 60 deg" in w for w in warn), warn
 

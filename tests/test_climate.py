@@ -14,9 +14,9 @@ from harbor.cli import add_climate_parser, cmd_climate
 import harbor
 from harbor.errors import InputError
 from harbor.solver import assemble
-from harbor.study.climate import (SECTORS, climate_downtime,
-                                  downtime_csv_text, percent_warning,
-                                  read_climate, sector_label, sector_of)
+from harbor.outputs.studies import climate_tables, downtime_csv_text
+from harbor.study.climate import (SECTORS, climate_downtime, percent_warning, read_climate,
+                                  sector_label, sector_of)
 
 GAP_TOML = """
 title = "collinear test entrance (invented)"
@@ -101,7 +101,10 @@ def test_downtime_by_hand(scenario, tmp_path, monkeypatch):
     counter = _CountingSolve(assemble.solve)
     monkeypatch.setattr(assemble, "solve", counter)
     res = climate_downtime(scenario, p, workers=1)
-    d = res.downtime
+    # a labelled result: the downtime per point and sector adds up to the total
+    assert res["downtime"].dims == ("point", "sector")
+    np.testing.assert_allclose(res["downtime"].sum("sector"), res["total"])
+    d, rows, occurrence = climate_tables(res)
     # hand computation: rows 2 and 3 exceed, at both points
     assert list(d.index) == ["quay", "pontoon"]            # points without a limit left out
     np.testing.assert_allclose(d["total"], [40.0, 40.0])
@@ -110,16 +113,17 @@ def test_downtime_by_hand(scenario, tmp_path, monkeypatch):
     others = [c for c in SECTORS if c not in (180, 210)]
     assert (d[others].to_numpy() == 0).all()
     np.testing.assert_allclose(d["limit"], [0.3, 0.8])
-    np.testing.assert_allclose(res.occurrence[180], 65.0)
-    np.testing.assert_allclose(res.occurrence[210], 35.0)
-    assert res.occurrence.sum() == pytest.approx(100.0)
+    np.testing.assert_allclose(occurrence[180], 65.0)
+    np.testing.assert_allclose(occurrence[210], 35.0)
+    assert occurrence.sum() == pytest.approx(100.0)
+    assert float(res["occurrence"].sel(sector=180)) == pytest.approx(65.0)
     assert percent_warning(read_climate(p)) is None
     # two distinct (period, direction, spreading): two solves at unit height, points only
     assert len(counter.calls) == 2
     for seas, grid in counter.calls:
         assert grid is False
         assert len(seas) == 1 and seas[0].height == 1.0 and seas[0].kind == "random"
-    r = res.rows
+    r = rows
     assert set(r.columns) >= {"row", "height", "period", "from", "percent", "sector",
                               "point", "kd", "point_height", "limit", "exceeds"}
     assert r["exceeds"].sum() == 4
@@ -146,7 +150,8 @@ def test_cases_are_reused(scenario, tmp_path, monkeypatch):
     assert len(counter.calls) == 4
     assert sorted((s[0].period, s[0].from_deg, s[0].spreading) for s, _ in counter.calls) \
         == [(6.0, 0.0, 10.0), (6.0, 330.0, 10.0), (6.0, 330.0, 75.0), (8.0, 330.0, 10.0)]
-    r = res.rows[res.rows["point"] == "quay"].set_index("row")
+    _, rows, _ = climate_tables(res)
+    r = rows[rows["point"] == "quay"].set_index("row")
     # linear theory: the same K' for every height of a case, heights in proportion
     assert r.loc[[1, 2, 3, 4], "kd"].nunique() == 1
     np.testing.assert_allclose(r.loc[4, "point_height"] / r.loc[1, "point_height"], 8.0)
@@ -196,7 +201,7 @@ def test_percent_warning(scenario, tmp_path):
     w = percent_warning(t)
     assert w is not None and "90.00" in w and "climate.csv" in w
     res = climate_downtime(scenario, t, workers=1)
-    assert w in res.warnings
+    assert w in res.attrs["warnings"]
     near = read_climate(_write(tmp_path, "height,period,from,percent\n"
                                          "0.01,6,180,50.4\n0.01,6,180,50.4\n"))
     assert percent_warning(near) is None

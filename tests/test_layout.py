@@ -153,7 +153,9 @@ def test_general_method_reduces_to_superposition_for_a_collinear_gap(theta, dire
 @pytest.mark.parametrize("direction", [60.0, 90.0, 110.0])
 def test_long_detached_breakwater_approaches_semi_infinite_near_each_head(direction):
     # A detached breakwater long compared with L behaves near each head like a
-    # semi-infinite one (the other head's wave is weak there: ~1/sqrt(k * length)).
+    # semi-infinite one (the other head's wave is weak there: ~1/sqrt(k * length) = 0.05,
+    # with its double diffraction at this head up to 0.053 at 60 deg; against the
+    # finite-element solution the method is within 0.01 behind 8 L, docs/accuracy.md 3a).
     length = 60 * L
     arm = Arm("detached", np.array([[0.0, 0.0], [length, 0.0]]))
     lay = Layout(arms=(arm,))
@@ -165,7 +167,7 @@ def test_long_detached_breakwater_approaches_semi_infinite_near_each_head(direct
     # and near the far head, mirrored
     u2, _ = layout_field(lay, length - xs, ys, L, np.radians(direction))
     ref2 = harbor.semi_infinite(xs, ys, L, 180.0 - direction)
-    assert np.max(np.abs(np.abs(u2) - np.abs(ref2))) < 0.05
+    assert np.max(np.abs(np.abs(u2) - np.abs(ref2))) < 0.06
 
 
 def test_convergence_used_matches_geodesic_azimuth():

@@ -127,7 +127,12 @@ def make_result(scenario, spacing=20.0, with_points=True):
                "cautions": "\n".join(CAUTIONS), "harbor_version": "0.1.0",
                "created": "2026-01-15T10:30:00+00:00",
                "method": "geometric optics + head diffraction (general layout)"})
-    return ds
+    # the layout and the CRS travel in the result, as harbor.solve puts them there
+    from harbor.solver.assemble import layout_variables, with_crs
+
+    ds = ds.assign(layout_variables(scenario.layout))
+    ds.attrs.update(scenario_crs=site.crs_code, scenario_crs_is_lonlat=int(site.is_lonlat))
+    return with_crs(ds, site.work_crs, site.work_to_lonlat)
 
 
 @pytest.fixture(scope="module")
@@ -141,7 +146,7 @@ def run(case, tmp_path_factory):
     """One complete write_all run shared by the file checks below."""
     sc, res = case
     out = tmp_path_factory.mktemp("run") / "out"
-    written = export.write_all(res, sc, out)
+    written = export.write_all(res, out)
     return sc, res, out, written
 
 
@@ -152,7 +157,10 @@ def test_write_all_names_and_files(run):
     names = sorted(p.name for p in written)
     assert names == sorted(["map-storm-sw.png", "sheet-storm-sw.pdf", "isolines-storm-sw.geojson",
                             "map-swell-n.png", "sheet-swell-n.pdf", "isolines-swell-n.geojson",
-                            "grid.nc", "points.csv"])
+                            "grid.nc", "points.csv", "report.pdf",
+                            # GIS files (harbor.outputs.gis)
+                            "kd-storm-sw.tif", "height-storm-sw.tif", "kd-swell-n.tif",
+                            "height-swell-n.tif", "harbor.gpkg"])
     assert sorted(p.name for p in out.iterdir()) == names
     # No staging directory or temporary file left beside or inside the output.
     assert [p.name for p in out.parent.iterdir()] == ["out"]
@@ -286,7 +294,8 @@ def test_netcdf_without_points(case, tmp_path):
 def test_points_csv(run):
     sc, res, out, _ = run
     text = (out / "points.csv").read_text()
-    assert text.splitlines()[0] == "sea,point,x,y,kd,height,period_ratio,limit,ok"
+    # the contract columns of DESIGN.md sect. 6 first, then the verdict columns
+    assert text.splitlines()[0] == "sea,point,x,y,kd,height,period_ratio,limit,ok,valid"
     rows = list(csv.DictReader(io.StringIO(text)))
     assert len(rows) == len(sc.seas) * len(sc.points)
     limits = {p.name: p.limit for p in sc.points}
@@ -334,8 +343,8 @@ def test_failed_run_leaves_nothing(case, tmp_path, monkeypatch):
     out = tmp_path / "out"
     # Cheap stand-ins for the plots, then a failure after every per-sea file is staged.
     monkeypatch.setattr("harbor.outputs.maps.sheltering_map",
-                        lambda r, s, sea, p, show="kd": _cheap(p))
-    monkeypatch.setattr("harbor.outputs.sheet.pdf_sheet", lambda r, s, sea, p, *a, **k: _cheap(p))
+                        lambda r, sea, p, show="kd": _cheap(p))
+    monkeypatch.setattr("harbor.outputs.sheet.pdf_sheet", lambda r, sea, p, *a, **k: _cheap(p))
 
     def boom(result, path):
         Path(path).write_bytes(b"half a NetCDF")
@@ -343,7 +352,7 @@ def test_failed_run_leaves_nothing(case, tmp_path, monkeypatch):
 
     monkeypatch.setattr(export, "write_netcdf", boom)
     with pytest.raises(RuntimeError, match="disk full"):
-        export.write_all(res, sc, out)
+        export.write_all(res, out)
     assert not out.exists()
     assert list(tmp_path.iterdir()) == []
 
@@ -359,7 +368,7 @@ def test_failed_run_keeps_previous_outputs(case, tmp_path, monkeypatch):
 
     monkeypatch.setattr("harbor.outputs.sheet.pdf_sheet", boom)
     with pytest.raises(RuntimeError):
-        export.write_all(res, sc, out)
+        export.write_all(res, out)
     assert sorted(p.name for p in out.iterdir()) == ["points.csv"]
     assert (out / "points.csv").read_text() == "previous,complete,file\n"
     assert sorted(p.name for p in tmp_path.iterdir()) == ["out"]
@@ -423,7 +432,7 @@ def test_standard_scales():
 def test_map_without_scenario_and_height(case, tmp_path):
     sc, _ = case
     res = make_result(sc, spacing=50.0)
-    p = maps.sheltering_map(res, None, "swell N", tmp_path / "m.png", show="height", dpi=60)
+    p = maps.sheltering_map(res, "swell N", tmp_path / "m.png", show="height", dpi=60)
     assert p.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
 
 
@@ -432,7 +441,7 @@ def test_unknown_sea_is_an_input_error(case, tmp_path):
 
     sc, res = case
     with pytest.raises(InputError, match="no sea state 'calm'"):
-        maps.sheltering_map(res, sc, "calm", tmp_path / "m.png")
+        maps.sheltering_map(res, "calm", tmp_path / "m.png")
     assert list(tmp_path.iterdir()) == []
 
 
@@ -539,7 +548,7 @@ def test_point_labels_clear_the_arms(case):
 
     sc, res = case
     fig = maps.new_figure()
-    drawn = maps.draw_map(fig, (0.75, 1.2, 8.0, 6.2), res, sc, "storm SW")
+    drawn = maps.draw_map(fig, (0.75, 1.2, 8.0, 6.2), res, "storm SW")
     ax = drawn["ax"]
     renderer = fig.canvas.get_renderer()
     labels = [t for t in ax.texts if isinstance(t, Annotation)]
@@ -555,7 +564,7 @@ def test_point_labels_clear_the_arms(case):
 def test_point_table_lists_every_point(case):
     sc, res = case
     fig = maps.new_figure()
-    drawn = maps.draw_map(fig, (0.75, 1.2, 8.0, 6.2), res, sc, "storm SW")
+    drawn = maps.draw_map(fig, (0.75, 1.2, 8.0, 6.2), res, "storm SW")
     n = len(fig.texts)
     used = maps.draw_point_table(fig, drawn, (9.0, 7.0), 2.5)
     text = " ".join(t.get_text() for t in fig.texts[n:])
@@ -563,3 +572,66 @@ def test_point_table_lists_every_point(case):
     for p in sc.points:
         assert p.name in text
     assert "OVER" in text or "ok" in text
+
+
+# --------------------------------------------------------------------------- deliverables
+
+def _pdf_pages(path):
+    # matplotlib writes one "/Type /Page" object per page (and "/Type /Pages" once)
+    data = Path(path).read_bytes()
+    return data.count(b"/Type /Page") - data.count(b"/Type /Pages")
+
+
+def test_report_has_cover_sheets_warnings_and_cautions(run):
+    sc, res, out, _ = run
+    # cover, one sheet per sea state, the warnings page, the cautions page
+    assert _pdf_pages(out / "report.pdf") == 1 + len(sc.seas) + 2
+
+
+def test_every_warning_is_printed_on_the_sheet(case):
+    # 30 long warnings for one sea state cannot fit beside the map: they continue on a
+    # second page rather than being cut to "+n more"
+    from harbor.cautions import Notice
+    from harbor.outputs.sheet import sheet_pages
+    from harbor.solver.assemble import notices, notices_variables
+
+    sc, res = case
+    name = str(res.sea.values[0])
+    many = [Notice(f"w{i}", f"warning {i}: " + "a long explanation of the problem " * 3,
+                   sea=name) for i in range(30)]
+    r = res.drop_vars([v for v in res if v.startswith("notice_")], errors="ignore")
+    r = r.assign(notices_variables(many))
+    assert len(notices(r, sea=name)) == 30
+    pages = sheet_pages(r, name)
+    assert len(pages) >= 2
+    text = " ".join(t.get_text() for fig in pages for t in fig.texts)
+    for i in range(30):
+        assert f"warning {i}:" in text
+
+
+def test_a_flagged_point_is_never_a_plain_ok(case):
+    # a point whose value is outside its method's validity keeps its verdict but always
+    # with the flag beside it: '?' in the terminal table, valid=false in the CSV
+    sc, res = case
+    r = res.copy()
+    pv = np.ones((r.sizes["sea"], r.sizes["point"]), bool)
+    pv[:, 0] = False
+    r["point_valid"] = (("sea", "point"), pv)
+    name = str(r.point.values[0])
+    line = next(ln for ln in export.point_table(r).splitlines() if ln.startswith(name))
+    assert "ok?" in line or "OVER?" in line
+    rows = list(csv.DictReader(io.StringIO(export.points_csv_text(r))))
+    assert {row["valid"] for row in rows if row["point"] == name} == {"false"}
+    assert {row["valid"] for row in rows if row["point"] != name} == {"true"}
+
+
+def test_outputs_need_nothing_but_the_result_file(run, tmp_path):
+    # grid.nc carries the layout, CRS, points and warnings: a map and the point table
+    # are drawn from it alone (no scenario object anywhere)
+    sc, res, out, _ = run
+    with xr.open_dataset(out / "grid.nc") as nc:
+        assert nc["arm_wkt"].sizes["arm"] == len(sc.layout.arms)
+        assert nc["crs"].attrs["crs_wkt"] == res["crs"].attrs["crs_wkt"]
+        p = maps.sheltering_map(nc, str(nc.sea.values[0]), tmp_path / "again.png", dpi=40)
+        assert p.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+        assert export.point_table(nc) == export.point_table(res)

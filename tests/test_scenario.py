@@ -427,3 +427,33 @@ def test_bad_value_in_a_file_names_the_file(tmp_path):
         load_scenario(p)
     e = info.value
     assert e.file == str(p) and e.where == "[[sea]] 'north swell'" and e.key == "height"
+
+
+def test_unknown_sea_name_suggests_the_nearest():
+    sc = scenario_from_dict(base(), path=FILE)
+    assert sc.sea("swell").period == 10.0
+    with pytest.raises(InputError) as e:
+        sc.sea("swel")
+    msg = str(e.value)
+    assert msg == "harbour.toml: key 'sea': no sea state named 'swel' (did you mean 'swell'?)"
+    with pytest.raises(KeyError):  # still a KeyError for code written against the old API
+        sc.sea("nothing like it")
+    with pytest.raises(InputError, match=r"known: storm, swell"):
+        sc.sea("zzz", key="--sea")
+
+
+def test_geometry_rules_module_is_the_readers():
+    # the reader's tolerance and point rule are harbor.geometry.checks': a point 5 mm
+    # off an arm (inside max(1 cm, 1e-6 x size)) is on it, 5 cm off is not
+    from harbor.geometry import checks
+
+    sc = scenario_from_dict(base(), path=FILE)
+    (ax, ay), (bx, by) = xy(-200.005, 100), xy(-200.05, 100)
+    assert checks.point_problems(sc.layout, [ax, bx], [ay, by]
+                                 ).tolist() == ["is on an arm ('west arm')", None]
+    d = base()
+    d["point"][0]["at"] = xy(-200.005, 100)
+    with pytest.raises(InputError, match=r"is on an arm \('west arm'\)"):
+        scenario_from_dict(d, path=FILE)
+    d["point"][0]["at"] = xy(-200.05, 100)
+    scenario_from_dict(d, path=FILE)

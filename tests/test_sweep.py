@@ -16,7 +16,7 @@ import pytest
 from harbor.cli import add_sweep_parser, cmd_sweep
 import harbor
 from harbor.errors import InputError
-from harbor.study.sweep import (MIN_GAP, SWEEP_COLUMNS, MoveRejected, move_head, move_range, sweep, sweep_csv_text,
+from harbor.study.sweep import (MIN_GAP, SWEEP_COLUMNS, sweep_table, MoveRejected, move_head, move_range, sweep, sweep_csv_text,
                                 verdict, widest_ok)
 
 Y0 = 5_000_000.0
@@ -105,8 +105,9 @@ def island_scenario(tmp_path_factory):
 
 @pytest.fixture(scope="module")
 def gap_sweep(gap_scenario):
-    # -50 widens to 150 m, +60 narrows to 40 m; -260 and +100 cannot be built
-    return sweep(gap_scenario, "west", [-260.0, -50.0, 0.0, 30.0, 60.0, 100.0])
+    # -50 widens to 150 m, +60 narrows to 40 m; -260 and +100 cannot be built.
+    # The tests below read the tidy table of the labelled result.
+    return sweep_table(sweep(gap_scenario, "west", [-260.0, -50.0, 0.0, 30.0, 60.0, 100.0]))
 
 
 def test_sweep_of_collinear_entrance_reproduces_gap(gap_scenario, gap_sweep):
@@ -154,7 +155,8 @@ def test_impossible_moves_are_reported_and_skipped(gap_sweep):
 
 
 def test_table_columns_and_ok(gap_sweep):
-    assert list(gap_sweep.columns) == SWEEP_COLUMNS
+    # the contract columns, then the validity flag
+    assert list(gap_sweep.columns) == SWEEP_COLUMNS + ["valid"]
     with_limit = gap_sweep[gap_sweep["point"] == "centre"]
     np.testing.assert_array_equal(with_limit["ok"].astype(bool),
                                   with_limit["height"] <= 0.5)
@@ -162,7 +164,7 @@ def test_table_columns_and_ok(gap_sweep):
     assert gap_sweep.loc[gap_sweep["point"] == "west corner", "limit"].isna().all()
     text = sweep_csv_text(gap_sweep)
     lines = text.splitlines()
-    assert lines[0] == "move,entrance_width,sea,point,kd,height,limit,ok"
+    assert lines[0] == "move,entrance_width,sea,point,kd,height,limit,ok,valid"
     assert len(lines) == 1 + len(gap_sweep)
     back = pd.read_csv(pd.io.common.StringIO(text))
     assert set(back.loc[back["point"] == "centre", "ok"]) <= {True, False}
@@ -271,9 +273,22 @@ def test_cli_sweep_writes_csv_and_png(gap_scenario, tmp_path, capsys):
     assert "widest entrance at which every point meets its limit" in text or \
         "lets every point meet its limit" in text
     csv_text = (out / "sweep-west.csv").read_text()
-    assert csv_text.startswith("move,entrance_width,sea,point,kd,height,limit,ok\n")
+    assert csv_text.startswith("move,entrance_width,sea,point,kd,height,limit,ok,valid\n")
     png = (out / "sweep-west.png").read_bytes()
     assert png[:8] == b"\x89PNG\r\n\x1a\n"
     # nothing but the two outputs is left behind (atomic staging)
     assert sorted(f.name for f in out.iterdir()) == ["sweep-west.csv", "sweep-west.png"]
     assert not [f for f in tmp_path.iterdir() if f.name.startswith(".")]
+
+
+def test_sweep_is_a_labelled_result(gap_scenario):
+    # the same shape as the climate study: an xarray Dataset with named dimensions; the
+    # widths follow from the invented layout (a 100 m gap, the west head moving east)
+    res = sweep(gap_scenario, "west", [0.0, 30.0, 100.0], sea="south")
+    assert res["height"].dims == ("move", "sea", "point")
+    assert list(res["move"].values) == [0.0, 30.0]          # +100 closes the entrance
+    np.testing.assert_allclose(res["entrance_width"], [100.0, 70.0])
+    assert [m for m, _ in res.attrs["skipped"]] == [100.0]
+    t = sweep_table(res)
+    assert list(t.columns) == SWEEP_COLUMNS + ["valid"]
+    assert len(t) == 2 * len(gap_scenario.points)

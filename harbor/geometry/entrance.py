@@ -43,6 +43,10 @@ class Entrance:
         Whether each arm's other end is rooted (on land).
     misalignment_deg : float
         Largest angle between an end segment and the axis (degrees).
+    passage : float
+        The entrance width (m): the narrowest water passage between the two arms (see
+        :func:`entrance_width`). Equal to ``width`` for heads that face each other; for
+        overlapping heads it is the channel between the arms.
     """
 
     arms: tuple
@@ -55,6 +59,7 @@ class Entrance:
     end_lengths: tuple
     rooted_far_ends: tuple
     misalignment_deg: float
+    passage: float = float("nan")
 
 
 def _free_heads(arm):
@@ -98,7 +103,55 @@ def nearest_heads(layout):
                     center=0.5 * (hi[0] + hj[0]), axis=axis, basin_normal=basin,
                     collinear=mis <= COLLINEAR_TOLERANCE_DEG,
                     end_lengths=(hi[2], hj[2]), rooted_far_ends=(hi[3], hj[3]),
-                    misalignment_deg=mis)
+                    misalignment_deg=mis,
+                    passage=_passage(arms[i], arms[j]))
+
+
+def _passage(arm_a, arm_b):
+    import shapely
+
+    return float(shapely.LineString(arm_a.line).distance(shapely.LineString(arm_b.line)))
+
+
+def entrance_width(layout):
+    """The entrance width of a layout: the narrowest water passage between the structures.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+
+    Returns
+    -------
+    float or None
+        Metres. With two or more free heads on different arms, the entrance is formed by
+        the closest pair of them (:func:`nearest_heads`) and its width is the shortest
+        distance between those two arms (the narrowest gap a ship passes through). With
+        one free head only, the shortest distance from it to any other arm or land. None
+        when there is no free head, or nothing else to measure to.
+
+    Notes
+    -----
+    One definition for every command (``check``, ``sweep``, ``climate``). For heads that
+    face each other it is the distance between the heads; for overlapping heads it is
+    the channel between the arms, not the distance between the heads, so lengthening the
+    outer arm never widens it: adding length to a structure can only shorten the
+    shortest distance to it. Pure geometry (shapely distances).
+    """
+    import shapely
+
+    ent = nearest_heads(layout)
+    if ent is not None:
+        return ent.passage
+    heads = [(i, tip) for i, arm in enumerate(layout.arms) for tip, _ in arm.heads()]
+    if len(heads) != 1:
+        return None
+    i, tip = heads[0]
+    p = shapely.Point(tip)
+    dists = [shapely.LineString(a.line).distance(p) for k, a in enumerate(layout.arms)
+             if k != i]
+    if layout.lands:
+        dists.append(layout.land_union().distance(p))
+    return float(min(dists)) if dists else None
 
 
 def basin_mask(layout, entrance, px, py, segments=None):

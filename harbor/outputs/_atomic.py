@@ -132,8 +132,193 @@ def staging_dir(out_dir):
     names: list[str] = []
     try:
         yield stage, names
-        out.mkdir(parents=True, exist_ok=True)
-        for n in names:
-            os.replace(stage / n, out / n)
+        with _signals_held():
+            out.mkdir(parents=True, exist_ok=True)
+            for n in names:
+                os.replace(stage / n, out / n)
     finally:
         shutil.rmtree(stage, ignore_errors=True)
+
+
+@contextlib.contextmanager
+def _signals_held():
+    """Hold SIGINT and SIGTERM back while the staged files are moved into place (a few
+    renames), so an interruption cannot leave half of a run published."""
+    import signal
+    import threading
+
+    held = {signal.SIGINT, signal.SIGTERM}
+    if threading.current_thread() is not threading.main_thread() or \
+            not hasattr(signal, "pthread_sigmask"):
+        yield
+        return
+    old = signal.pthread_sigmask(signal.SIG_BLOCK, held)
+    try:
+        yield
+    finally:
+        signal.pthread_sigmask(signal.SIG_SETMASK, old)
+
+
+# --------------------------------------------------------------------- output location
+
+#: Folders no output may go to: the kernel's and the devices' views, not storage.
+SYSTEM_FOLDERS = ("/proc", "/sys", "/dev")
+
+
+def _under_system_folder(real: str) -> str | None:
+    for top in SYSTEM_FOLDERS:
+        if real == top or real.startswith(top + os.sep):
+            return top
+    return None
+
+
+def _existing_ancestor(path: Path) -> Path:
+    p = path
+    while not p.exists():
+        if p.parent == p:
+            break
+        p = p.parent
+    return p
+
+
+def _probe_writable(folder: Path, shown: str):
+    """Create and remove a scratch file in ``folder``; turn a refusal into one line."""
+    from harbor.errors import MachineError, machine_fault
+
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=".harbor-probe-", dir=folder)
+    except OSError as e:
+        fault = machine_fault(e)
+        if fault is not None:
+            raise MachineError(fault.problem.replace("; nothing was written", "") +
+                               " (checked before solving; nothing was written)",
+                               file=shown, exit_code=fault.exit_code) from None
+        raise MachineError(f"cannot write there ({e.strerror}); nothing was written",
+                           file=shown) from None
+    os.close(fd)
+    os.unlink(tmp)
+
+
+def check_output(path, kind: str = "dir") -> Path:
+    """Check, before any solving, that an output folder or file can be written.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The ``--out`` of a command.
+    kind : {"dir", "file"}
+        A folder of outputs (``map``, ``sweep``, ``climate``, ``demo``) or one file
+        (``diagram``).
+
+    Returns
+    -------
+    pathlib.Path
+        The absolute path.
+
+    Raises
+    ------
+    harbor.errors.InputError
+        The path is under /proc, /sys or /dev; it exists and is not a folder (``dir``:
+        a file, ``/dev/null``) or not a regular file (``file``: a folder, a device); the
+        nearest existing ancestor is not a folder.
+    harbor.errors.MachineError
+        No write permission or a read-only file system (exit code 3), no space (exit
+        code 4): a scratch file could not be created where the output will go.
+
+    Notes
+    -----
+    Nothing is left behind: the scratch file is removed at once, and no folder is
+    created (a missing output folder is created only when the outputs are published).
+    """
+    from harbor.errors import InputError
+
+    shown = str(path)
+    absolute = Path(os.path.abspath(path))
+    real = os.path.realpath(absolute)
+    top = _under_system_folder(real)
+    if top is not None:
+        raise InputError(f"is under {top}, a system folder, not storage; choose a folder "
+                         "of your own", key="--out", file=shown)
+    if kind == "dir":
+        if absolute.exists() and not absolute.is_dir():
+            what = "a file" if absolute.is_file() else "not a folder (a device or a pipe)"
+            raise InputError(f"exists and is {what}; --out names a folder", key="--out",
+                             file=shown)
+    else:
+        if absolute.exists() and not absolute.is_file():
+            what = "a folder" if absolute.is_dir() else "a device or a pipe"
+            raise InputError(f"is {what}, not a file that can be replaced", key="--out",
+                             file=shown)
+    # staging happens in the parent (created if missing), publishing in the folder
+    anc = _existing_ancestor(absolute.parent)
+    if not anc.is_dir():
+        raise InputError(f"'{anc}' is not a folder", key="--out", file=shown)
+    _probe_writable(anc, shown)
+    if kind == "dir" and absolute.is_dir():
+        _probe_writable(absolute, shown)
+    return absolute
+
+
+@contextlib.contextmanager
+def claim_output(path, kind: str = "dir"):
+    """Check an output location (:func:`check_output`) and hold it for this run.
+
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The ``--out`` of a command.
+    kind : {"dir", "file"}
+        See :func:`check_output`.
+
+    Yields
+    ------
+    pathlib.Path
+        The absolute path.
+
+    Raises
+    ------
+    harbor.errors.MachineError
+        Another harbor run is writing to the same location (exit code 3), besides the
+        errors of :func:`check_output`.
+
+    Notes
+    -----
+    The claim is an exclusive ``flock`` on a small lock file beside the location (in
+    its nearest existing ancestor), removed when the run ends; the operating system
+    releases the lock if the process dies, so a stale file never blocks a later run.
+    """
+    import hashlib
+
+    from harbor.errors import MachineError
+
+    absolute = check_output(path, kind)
+    try:
+        import fcntl
+    except ImportError:  # pragma: no cover - not POSIX: no claim, the checks still ran
+        yield absolute
+        return
+    anc = _existing_ancestor(absolute.parent)
+    tag = hashlib.sha1(os.path.realpath(absolute).encode()).hexdigest()[:12]
+    lock = anc / f".harbor-lock-{tag}"
+    while True:
+        fd = os.open(lock, os.O_RDWR | os.O_CREAT, 0o644)
+        try:
+            fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
+        except OSError:
+            os.close(fd)
+            raise MachineError("another harbor run is writing to this location; wait for "
+                               "it to finish or choose another --out", file=str(path)) from None
+        # the previous holder may have removed the file between our open and our lock
+        try:
+            same = os.path.samestat(os.fstat(fd), os.stat(lock))
+        except FileNotFoundError:
+            same = False
+        if same:
+            break
+        os.close(fd)
+    try:
+        yield absolute
+    finally:
+        with contextlib.suppress(OSError):
+            os.unlink(lock)
+        os.close(fd)

@@ -20,8 +20,9 @@ from matplotlib.patches import Circle, FancyArrowPatch
 from harbor.cautions import CAUTION_SHORT
 from harbor.errors import InputError
 from harbor.outputs._atomic import atomic_path
+from harbor.outputs.cartography import _drop_specks
 from harbor.outputs.maps import (ARM_COLOUR, CMAP, INK, KD_FILL, KD_LINES, MUTED, A4_LANDSCAPE,
-                                 fit_axes_rect, new_figure, wrap_to)
+                                 _declutter_labels, fit_axes_rect, new_figure, wrap_to)
 
 CREST_COLOUR = "#e8590c"
 
@@ -101,6 +102,36 @@ def _direction_inset(fig, ax, direction_deg, at=(0.085, 0.13)):
     return disc
 
 
+#: Gaussian width (in wavelengths) of the display smoothing of a random sea's isolines.
+RANDOM_SMOOTH_L = 0.15
+#: Isoline pieces of a random sea smaller than this (wavelengths) are left out.
+RANDOM_SPECK_L = 0.5
+
+
+def _smooth_for_lines(field, x, y):
+    """The field smoothed over :data:`RANDOM_SMOOTH_L` for drawing isolines only.
+
+    A directional random sea is an energy sum over a finite set of directions and
+    frequencies; between the quadrature's components the effective K' carries a ripple
+    of a few hundredths that the 0.1-step isolines trace as jagged lines and specks. The
+    true field of a continuous spectrum is smooth at that scale, so the isolines are
+    drawn on a Gaussian-smoothed copy (NaN-aware: normalised by the smoothed mask). The
+    colour fill and every exported value keep the computed field (cartographic
+    generalisation, not a change of the result).
+    """
+    from scipy import ndimage
+
+    h = float(min(np.min(np.diff(x)) if x.size > 1 else 1.0,
+                  np.min(np.diff(y)) if y.size > 1 else 1.0))
+    sigma = max(RANDOM_SMOOTH_L / h, 0.5)
+    ok = np.isfinite(field)
+    num = ndimage.gaussian_filter(np.where(ok, field, 0.0), sigma, mode="nearest")
+    den = ndimage.gaussian_filter(ok.astype(float), sigma, mode="nearest")
+    with np.errstate(invalid="ignore", divide="ignore"):
+        out = num / den
+    return np.where(ok, out, np.nan)
+
+
 def plot_diagram(ds, path):
     """Draw a non-dimensional diffraction diagram to PNG or PDF (by the path's suffix).
 
@@ -175,9 +206,12 @@ def plot_diagram(ds, path):
     for a, b in segs:
         on_barrier |= row0[:, None] & ((x >= a) & (x <= b))[None, :]
     kd_lee = np.where((y[:, None] >= 0.0) & ~on_barrier, kd, np.nan)
+    if random:
+        kd_lee = _smooth_for_lines(kd_lee, x, y)
     cs = ax.contour(x, y, kd_lee, levels=lines, colors=INK, linewidths=0.75, zorder=3)
-    labels = ax.clabel(cs, inline=True, fontsize=7.5, fmt=lambda v: f"{v:.1f}",
-                       inline_spacing=3)
+    if random:
+        _drop_specks(cs, RANDOM_SPECK_L)
+    labels = _declutter_labels(ax, cs, lambda v: f"{v:.1f}", 7.5)
     for t in labels:
         t.set_path_effects([patheffects.withStroke(linewidth=2.2, foreground="white")])
         t.set_zorder(4)

@@ -19,10 +19,14 @@ import pyproj
 
 from harbor.cautions import CAUTION_SHORT, CAUTIONS
 from harbor.outputs._atomic import atomic_path, staging_dir, unique_slugs, write_text_atomic
-from harbor.outputs.maps import arm_mask, point_rows, sea_info, sea_name, warning_lines
+from harbor.outputs.read import (arm_mask, coordinate_digits, point_rows, sea_info, sea_name,
+                                 verdict, warning_lines)
 
 DEFAULT_LEVELS = tuple(float(v) for v in np.round(np.arange(0.1, 1.0001, 0.1), 10))
-CSV_COLUMNS = ("sea", "point", "x", "y", "kd", "height", "period_ratio", "limit", "ok")
+#: Columns of points.csv: the contract columns of ``harbor points`` first
+#: (sea,point,x,y,kd,height,period_ratio), then the verdict columns; ``valid`` is false
+#: where the value is outside its method's measured validity (``point_valid``).
+CSV_COLUMNS = ("sea", "point", "x", "y", "kd", "height", "period_ratio", "limit", "ok", "valid")
 
 
 def _work_crs(result) -> pyproj.CRS:
@@ -30,12 +34,8 @@ def _work_crs(result) -> pyproj.CRS:
     return pyproj.CRS.from_user_input(wkt if wkt else result.attrs["crs"])
 
 
-def _lonlat_converter(result, scenario):
-    """Work frame (m) -> WGS 84 (lon, lat): the site's own converter when a scenario is
-    given, else one built from the result's CRS."""
-    site = getattr(scenario, "site", None) if scenario is not None else None
-    if site is not None and hasattr(site, "work_to_lonlat"):
-        return site.work_to_lonlat
+def _lonlat_converter(result):
+    """Work frame (m) -> WGS 84 (lon, lat), built from the result's CRS."""
     tr = pyproj.Transformer.from_crs(_work_crs(result), "EPSG:4326", always_xy=True)
     return lambda x, y: tr.transform(np.asarray(x, float), np.asarray(y, float))
 
@@ -50,7 +50,7 @@ def _fmt(v, digits):
 
 # --------------------------------------------------------------------------- GeoJSON
 
-def isolines(result, sea, levels=DEFAULT_LEVELS, quantity="kd", scenario=None):
+def isolines(result, sea, levels=DEFAULT_LEVELS, quantity="kd"):
     """Contour lines of a result variable in the work frame.
 
     Parameters
@@ -63,9 +63,9 @@ def isolines(result, sea, levels=DEFAULT_LEVELS, quantity="kd", scenario=None):
         Contour levels (K' is dimensionless; height in m).
     quantity : {"kd", "height"}
         Variable to contour.
-    scenario : Scenario, optional
-        When given, grid cells crossed by an arm are left out (see
-        :func:`harbor.outputs.maps.arm_mask`), so no spurious line runs along an arm.
+
+    Grid cells crossed by an arm of the result's layout are left out (see
+    :func:`harbor.outputs.read.arm_mask`), so no spurious line runs along an arm.
 
     Returns
     -------
@@ -82,23 +82,20 @@ def isolines(result, sea, levels=DEFAULT_LEVELS, quantity="kd", scenario=None):
     z = np.asarray(result[quantity].sel(sea=name).transpose("y", "x").values, float)
     x = np.asarray(result["x"].values, float)
     y = np.asarray(result["y"].values, float)
-    z = np.where(arm_mask(x, y, scenario), np.nan, z)
+    z = np.where(arm_mask(result), np.nan, z)
     gen = contourpy.contour_generator(x, y, z,
                                       line_type=contourpy.LineType.Separate)
     return {float(lv): [np.asarray(a, float) for a in gen.lines(float(lv)) if len(a) >= 2]
             for lv in levels}
 
 
-def write_geojson_isolines(result, scenario, sea, path, levels=DEFAULT_LEVELS):
+def write_geojson_isolines(result, sea, path, levels=DEFAULT_LEVELS):
     """Write K' isolines of one sea state as an RFC 7946 GeoJSON FeatureCollection.
 
     Parameters
     ----------
     result : xarray.Dataset
         Solved result.
-    scenario : harbor.study.scenario.Scenario or None
-        Its ``site.work_to_lonlat`` converts coordinates; without it, a converter is
-        built from the result's ``crs_wkt``.
     sea : str, int or Sea
         Sea state.
     path : str or os.PathLike
@@ -127,8 +124,8 @@ def write_geojson_isolines(result, scenario, sea, path, levels=DEFAULT_LEVELS):
     """
     name = sea_name(result, sea)
     info = sea_info(result, name)
-    to_ll = _lonlat_converter(result, scenario)
-    lines = isolines(result, name, levels, "kd", scenario)
+    to_ll = _lonlat_converter(result)
+    lines = isolines(result, name, levels, "kd")
     features, found = [], []
     lon_all, lat_all = [], []
     for level, parts in lines.items():
@@ -170,7 +167,7 @@ def write_geojson_isolines(result, scenario, sea, path, levels=DEFAULT_LEVELS):
         "work_crs": str(result.attrs.get("crs", "")),
         "levels_requested": [float(v) for v in levels],
         "levels_found": found,
-        "warnings": warning_lines(result),
+        "warnings": warning_lines(result, sea=name),
         "cautions": list(CAUTIONS),
     }
     text = json.dumps(doc, ensure_ascii=False, allow_nan=False, separators=(",", ":"))
@@ -209,27 +206,22 @@ def netcdf_dataset(result):
     crs = _work_crs(result)
     version = str(result.attrs.get("harbor_version", getattr(harbor, "__version__", "")))
 
-    ds["x"].attrs = {"standard_name": "projection_x_coordinate", "long_name": "easting",
-                     "units": "m", "axis": "X"}
-    ds["y"].attrs = {"standard_name": "projection_y_coordinate", "long_name": "northing",
-                     "units": "m", "axis": "Y"}
+    ds["x"].attrs = {"standard_name": "projection_x_coordinate",
+                     "long_name": "easting (work frame)", "units": "m", "axis": "X"}
+    ds["y"].attrs = {"standard_name": "projection_y_coordinate",
+                     "long_name": "northing (work frame)", "units": "m", "axis": "Y"}
     ds["sea"].attrs = {"long_name": "sea state name"}
 
-    cf = crs.to_cf()
-    cf = {k: _attr(v) for k, v in cf.items()}
-    cf.setdefault("crs_wkt", crs.to_wkt())
-    cf["spatial_ref"] = cf["crs_wkt"]  # the name GDAL looks for
-    ds["crs"] = ((), np.int32(0), cf)
+    if "crs" not in ds or "lon" not in ds.coords:
+        # a result from an older version: the same grid mapping and lon/lat as solve()
+        from harbor.solver.assemble import with_crs
 
-    # Geographic auxiliary coordinates so that any CF reader can place the grid.
-    X, Y = np.meshgrid(ds["x"].values, ds["y"].values)
-    tr = pyproj.Transformer.from_crs(crs, "EPSG:4326", always_xy=True)
-    lon, lat = tr.transform(X, Y)
-    ds = ds.assign_coords(
-        lon=(("y", "x"), lon, {"standard_name": "longitude", "long_name": "longitude (WGS 84)",
-                               "units": "degrees_east"}),
-        lat=(("y", "x"), lat, {"standard_name": "latitude", "long_name": "latitude (WGS 84)",
-                               "units": "degrees_north"}))
+        ds = with_crs(ds, crs, _lonlat_converter(result))
+    for v in ("arm_rooted_start", "arm_rooted_end", "valid", "point_valid"):
+        if v in ds:
+            ds[v] = ds[v].astype("int8")  # netCDF has no boolean type
+            ds[v].attrs["flag_values"] = np.array([0, 1], dtype="int8")
+            ds[v].attrs["flag_meanings"] = "false true"
 
     var_attrs = {
         "kd": {"long_name": "diffraction coefficient K' (local / incident wave height; "
@@ -334,24 +326,50 @@ def write_netcdf(result, path):
 
 # --------------------------------------------------------------------------- points
 
+def point_records(result):
+    """The points of a result, one record per sea state and point: the one source of
+    ``points.csv``, ``harbor points`` (CSV, JSON) and the terminal table.
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+
+    Returns
+    -------
+    list of dict
+        ``sea``, ``point``, ``x``, ``y`` (scenario CRS: easting or longitude first),
+        ``kd``, ``height`` (m), ``period_ratio`` (None for regular seas), ``limit`` (m or
+        None), ``ok`` (height <= limit; None without a limit), ``valid`` (False where
+        the value is outside its method's measured validity), ``flags`` (codes of the
+        warnings behind ``valid`` False), ``method``.
+    """
+    out = []
+    for name in [str(s) for s in result["sea"].values]:
+        method = sea_info(result, name)["method"]
+        for r in point_rows(result, name):
+            pr = r["period_ratio"]
+            out.append(dict(sea=name, point=r["name"], x=r["x_crs"], y=r["y_crs"], kd=r["kd"],
+                            height=r["height"],
+                            period_ratio=None if not np.isfinite(pr) else pr,
+                            limit=r["limit"], ok=r["ok"], valid=r["valid"], flags=r["flags"],
+                            method=method))
+    return out
+
+
+def _bool(v):
+    return "" if v is None else ("true" if v else "false")
+
+
 def points_csv_text(result) -> str:
     """The CSV text written by :func:`write_points_csv`."""
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(CSV_COLUMNS)
-    # x, y in the scenario's own CRS when the result carries them (lon/lat scenarios)
-    cx = result["point_x_crs"].values if "point_x_crs" in result else None
-    cy = result["point_y_crs"].values if "point_y_crs" in result else None
-    lonlat = str(result.attrs.get("scenario_crs", "")).upper() in ("EPSG:4326", "OGC:CRS84")
-    digits = 8 if lonlat else 2
-    for name in [str(s) for s in result["sea"].values]:
-        for i, r in enumerate(point_rows(result, None, name)):
-            x = cx[i] if cx is not None else r["x"]
-            y = cy[i] if cy is not None else r["y"]
-            w.writerow([name, r["name"], _fmt(x, digits), _fmt(y, digits), _fmt(r["kd"], 4),
-                        _fmt(r["height"], 3), _fmt(r["period_ratio"], 4),
-                        _fmt(r["limit"], 3),
-                        "" if r["ok"] is None else ("true" if r["ok"] else "false")])
+    digits = coordinate_digits(result)
+    for r in point_records(result):
+        w.writerow([r["sea"], r["point"], _fmt(r["x"], digits), _fmt(r["y"], digits),
+                    _fmt(r["kd"], 4), _fmt(r["height"], 3), _fmt(r["period_ratio"], 4),
+                    _fmt(r["limit"], 3), _bool(r["ok"]), _bool(r["valid"])])
     return buf.getvalue()
 
 
@@ -371,11 +389,13 @@ def write_points_csv(result, path):
 
     Notes
     -----
-    Columns: ``sea,point,x,y,kd,height,period_ratio,limit,ok``. x, y in metres in the
-    work frame (the scenario CRS when it is projected); height in m (H or H1/3);
+    Columns: ``sea,point,x,y,kd,height,period_ratio,limit,ok,valid``. x, y in the
+    scenario's CRS (metres, 2 decimals; longitude and latitude, 8 decimals, for a
+    geographic CRS however it is spelt); height in m (H or H1/3);
     ``period_ratio`` empty for regular seas; ``limit`` empty when none is given;
     ``ok`` is ``true`` when height <= limit, ``false`` when above, empty without a
-    limit. No comment lines, so any CSV reader opens it; the cautions travel in the
+    limit; ``valid`` is ``false`` where the value is outside its method's measured
+    validity (then ``ok`` cannot be trusted: see the warnings). No comment lines, so any CSV reader opens it; the cautions travel in the
     other outputs.
 
     References
@@ -412,7 +432,7 @@ def point_table(result) -> str:
                    f"{ts} {inf['period']:.1f} s, from {inf['from']:.0f} deg true"
                    + (f", s_max {inf['spreading']:.0f}" if inf["random"] else "")
                    + f" - {inf['method']}")
-    rows = {s: point_rows(result, None, s) for s in seas}
+    rows = {s: point_rows(result, s) for s in seas}
     names = [r["name"] for r in rows[seas[0]]] if seas else []
     if not names:
         out.append("")
@@ -422,7 +442,7 @@ def point_table(result) -> str:
         widths = [max(9, min(18, len(s))) for s in seas]
         head = f"{'point':<{pw}}  {'limit':>6}"
         for s, w in zip(seas, widths):
-            head += f"  {s[:w]:>{w}} {'':4}"
+            head += f"  {s[:w]:>{w}} {'':5}"
         out.append("")
         out.append("Wave height at each point (m): H for regular seas, H1/3 for random seas")
         out.append(head.rstrip())
@@ -433,18 +453,17 @@ def point_table(result) -> str:
             for s, w in zip(seas, widths):
                 r = rows[s][j]
                 h = "n/a" if not np.isfinite(r["height"]) else f"{r['height']:.2f}"
-                status = {True: "ok", False: "OVER", None: ""}[r["ok"]]
-                line += f"  {h:>{w}} {status:<4}"
+                line += f"  {h:>{w}} {verdict(r):<5}"
             out.append(line.rstrip())
         n_over = sum(1 for s in seas for r in rows[s] if r["ok"] is False)
+        n_flag = sum(1 for s in seas for r in rows[s] if r["ok"] is not None and not r["valid"])
         out.append("")
         out.append(f"{n_over} point/sea-state pair(s) over the limit." if n_over
                    else "All points with a limit meet it in every sea state.")
-    warns = warning_lines(result)
-    if warns:
-        out.append("")
-        out.append("Validity warnings:")
-        out.extend(f"  - {w}" for w in warns)
+        if n_flag:
+            out.append(f"'?': {n_flag} verdict(s) from a method outside its measured validity "
+                       "at that point (see the warnings): do not rely on them.")
+    out.extend(warnings_text(result))
     out.append("")
     out.append("Cautions:")
     out.extend(f"  - {c}" for c in CAUTIONS)
@@ -453,15 +472,42 @@ def point_table(result) -> str:
 
 # --------------------------------------------------------------------------- whole run
 
-def write_all(result, scenario, out_dir, seas=None, show="kd"):
+def warnings_text(result) -> list[str]:
+    """The validity warnings and notes of a result as terminal lines, grouped: those
+    about every sea state first, then each sea state's own.
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+
+    Returns
+    -------
+    list of str
+        Empty when there is nothing to say.
+    """
+    from harbor.solver.assemble import notices
+
+    items = list(dict.fromkeys(notices(result)))
+    if not items:
+        return []
+    out = ["", "Validity warnings and notes:"]
+    general = [n for n in items if n.sea is None]
+    out.extend(f"  - {n.text}" for n in general)
+    for s in [str(v) for v in result["sea"].values]:
+        own = [n for n in items if n.sea == s]
+        if own:
+            out.append(f"  sea state '{s}':")
+            out.extend(f"    - {n.text}" for n in own)
+    return out
+
+
+def write_all(result, out_dir, seas=None, show="kd"):
     """Write every output of a run, all of them or none.
 
     Parameters
     ----------
     result : xarray.Dataset
-        Solved result.
-    scenario : harbor.study.scenario.Scenario or None
-        The scenario solved.
+        Solved result (it carries everything: field, layout, points, warnings, CRS).
     out_dir : str or os.PathLike
         Output directory (created if missing).
     seas : sequence of str, optional
@@ -473,8 +519,10 @@ def write_all(result, scenario, out_dir, seas=None, show="kd"):
     -------
     list of pathlib.Path
         The files written: per sea state ``map-<sea>.png``, ``sheet-<sea>.pdf``,
-        ``isolines-<sea>.geojson`` (``<sea>`` the slugged name), then ``grid.nc`` and
-        ``points.csv``.
+        ``isolines-<sea>.geojson`` (``<sea>`` the slugged name), then ``grid.nc``,
+        ``points.csv`` and ``report.pdf`` (the combined report for the client), then
+        the GIS files of :func:`harbor.outputs.gis.write_gis` (``kd-<sea>.tif``,
+        ``height-<sea>.tif``, ``harbor.gpkg``).
 
     Notes
     -----
@@ -482,25 +530,35 @@ def write_all(result, scenario, out_dir, seas=None, show="kd"):
     only when all of them have been written; if anything fails, nothing is left behind
     and existing files in ``out_dir`` are untouched.
     """
+    from harbor.outputs import sheet as _sheet
     from harbor.outputs.maps import sheltering_map
-    from harbor.outputs.sheet import pdf_sheet
+    from harbor.outputs.report import pdf_report
 
     names = [sea_name(result, s) for s in (seas if seas is not None else
                                            [str(v) for v in result["sea"].values])]
     slugs = unique_slugs(names)
+    drawn = {}
+
+    def sheet(p, name, i):
+        # each sheet is drawn once: the same pages go into its own file and the report
+        return _sheet.pdf_sheet(result, name, p, i + 1, len(names), show=show, keep=drawn)
+
     with staging_dir(out_dir) as (stage, staged):
         for i, (name, sl) in enumerate(zip(names, slugs)):
             for fname, writer in (
-                    (f"map-{sl}.png", lambda p: sheltering_map(result, scenario, name, p, show=show)),
-                    (f"sheet-{sl}.pdf", lambda p: pdf_sheet(result, scenario, name, p, i + 1,
-                                                           len(names), show=show)),
+                    (f"map-{sl}.png", lambda p: sheltering_map(result, name, p, show=show)),
+                    (f"sheet-{sl}.pdf", lambda p: sheet(p, name, i)),
                     (f"isolines-{sl}.geojson",
-                     lambda p: write_geojson_isolines(result, scenario, name, p))):
+                     lambda p: write_geojson_isolines(result, name, p))):
                 writer(stage / fname)
                 staged.append(fname)
         write_netcdf(result, stage / "grid.nc")
         staged.append("grid.nc")
         write_points_csv(result, stage / "points.csv")
         staged.append("points.csv")
+        pdf_report(result, stage / "report.pdf", seas=names, show=show, sheets=drawn)
+        staged.append("report.pdf")
+        from harbor.outputs.gis import write_gis
+        staged += write_gis(result, stage, seas=names)
     out = Path(out_dir).resolve()
     return [out / n for n in staged]

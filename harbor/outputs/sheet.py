@@ -16,9 +16,11 @@ from matplotlib.patches import Rectangle
 
 from harbor.cautions import CAUTIONS
 from harbor.outputs._atomic import atomic_path, slug
-from harbor.outputs.maps import (INK, MUTED, OVER_COLOUR, crs_label, draw_colorbar, draw_legend,
-                                 draw_map, draw_point_table, new_figure, sea_info, sea_label, sea_name,
-                                 standard_scale, title_lines, warning_lines, wrap_to)
+from harbor.outputs.labels import draw_point_table
+from harbor.outputs.maps import draw_colorbar, draw_legend, draw_map
+from harbor.outputs.read import crs_label, sea_info, sea_name, title_lines, warning_lines
+from harbor.outputs.style import (INK, MUTED, OVER_COLOUR, new_figure, sea_label,
+                                  standard_scale, wrap_to)
 
 MM = 1.0 / 25.4  # inches per millimetre
 DOCUMENT_TYPE = "Preliminary sheltering map"
@@ -32,11 +34,12 @@ def _wrap(text: str, width_in: float, fontsize: float) -> list[str]:
 
 
 def _text_block(fig, x, y_top, width, max_height, heading, items, fontsize=6.8,
-                colour=INK, bullet="\u2013 "):
+                colour=INK, bullet="\u2013 ", more="continued on the next page"):
     """Write a heading and wrapped bullet items downwards from ``y_top`` (inches).
 
-    Items that do not fit in ``max_height`` are summarised in a last line, so the block
-    never runs into the title block. Returns the height used (inches).
+    Items that do not fit in ``max_height`` are left for a continuation page: a last
+    line says how many and where, so the block never runs into the title block.
+    Returns ``(height used in inches, items not printed)``.
     """
     fw, fh = fig.get_size_inches()
     line_h = fontsize * 1.3 / 72.0
@@ -44,18 +47,20 @@ def _text_block(fig, x, y_top, width, max_height, heading, items, fontsize=6.8,
              color=colour, va="top")
     y = y_top - (fontsize + 1.2) * 1.5 / 72.0
     lines = []
+    rest = []
     for i, item in enumerate(items):
         wrapped = _wrap(item, width - 0.12, fontsize)
         block = [bullet + wrapped[0]] + ["   " + w for w in wrapped[1:]]
         reserve = 1 if i < len(items) - 1 else 0  # room for the "+n more" line
         if (len(lines) + len(block) + reserve) * line_h > max_height - (y_top - y) + 1e-9:
-            lines.append(f"(+{len(items) - i} more: see the NetCDF file's 'warnings' attribute)")
+            lines.append(f"(+{len(items) - i} more: {more})")
+            rest = list(items[i:])
             break
         lines.extend(block)
     if lines:
         fig.text(x / fw, y / fh, "\n".join(lines), fontsize=fontsize, color=colour, va="top",
                  linespacing=1.3)
-    return (y_top - y) + len(lines) * line_h
+    return (y_top - y) + len(lines) * line_h, rest
 
 
 def _block_height(items, width, fontsize) -> float:
@@ -64,12 +69,12 @@ def _block_height(items, width, fontsize) -> float:
     return (fontsize + 1.2) * 1.5 / 72.0 + n * fontsize * 1.3 / 72.0
 
 
-def _title_block(fig, x0, y0, result, scenario, info, scale, sheet_number, sheet_count,
-                 name):
+def _title_block(fig, x0, y0, result, info, scale, sheet_number, sheet_count, name):
     """Draw the ISO 7200-style title block with its lower-left corner at (x0, y0) inches.
 
-    Width 180 mm (the ISO 7200 maximum) and four rows; empty fields (approval,
-    responsible department) are left for the engineer who signs the sheet.
+    Width 180 mm (the ISO 7200 maximum) and four rows; the fields that belong to people
+    (responsible department, prepared by, approved by) are left empty for the engineers
+    who prepare and sign the sheet (the program is named in the provenance).
     """
     fw, fh = fig.get_size_inches()
     width = TB_WIDTH
@@ -89,10 +94,10 @@ def _title_block(fig, x0, y0, result, scenario, info, scale, sheet_number, sheet
                  color=colour, va="bottom", fontweight="bold" if bold else "normal",
                  linespacing=1.1)
 
-    title, _, _ = title_lines(result, scenario, info)
+    title, _, _ = title_lines(result, info)
     created = str(result.attrs.get("created", ""))
     date = created[:10] if len(created) >= 10 else created
-    stem = Path(str(result.attrs.get("scenario", "") or getattr(scenario, "path", "") or "scenario")).stem
+    stem = Path(str(result.attrs.get("scenario", "") or "scenario")).stem
     ident = f"{slug(stem, 'scenario')}/{slug(name)}"
     right_w = 62 * MM
     left_w = width - right_w
@@ -114,8 +119,7 @@ def _title_block(fig, x0, y0, result, scenario, info, scale, sheet_number, sheet
     box(x0 + left_w, y, right_w, rows[2], "Identification number", ident, size=7.2)
     # Row 4: responsible dept | prepared by | approved by | date | CRS | scale | sheet
     y -= rows[3]
-    cells = [("Responsible department", "", 30), ("Prepared by",
-              f"harbor {result.attrs.get('harbor_version', '')}", 24),
+    cells = [("Responsible department", "", 30), ("Prepared by", "", 24),
              ("Approved by", "", 26), ("Date of issue", date, 22),
              ("CRS", crs_label(result), 28), ("Scale", f"1:{scale:,.0f}".replace(",", "\u2009")
                                               + " (A4)", 28),
@@ -127,19 +131,15 @@ def _title_block(fig, x0, y0, result, scenario, info, scale, sheet_number, sheet
     return height
 
 
-def pdf_sheet(result, scenario, sea, path, sheet_number=1, sheet_count=1, show="kd"):
-    """Write a one-page A4-landscape PDF sheet of one sea state.
+def sheet_pages(result, sea, sheet_number=1, sheet_count=1, show="kd"):
+    """The pages of the PDF sheet of one sea state, as matplotlib figures.
 
     Parameters
     ----------
     result : xarray.Dataset
-        Solved result from :func:`harbor.solve`.
-    scenario : harbor.study.scenario.Scenario or None
-        The scenario solved (arms, land, points).
+        Solved result from :func:`harbor.solve` (everything drawn comes from it).
     sea : str, int or Sea
         The sea state.
-    path : str or os.PathLike
-        Output PDF file; written atomically.
     sheet_number, sheet_count : int
         Printed as "n / N" in the title block.
     show : {"kd", "height"}
@@ -147,33 +147,15 @@ def pdf_sheet(result, scenario, sea, path, sheet_number=1, sheet_count=1, show="
 
     Returns
     -------
-    pathlib.Path
-        The written file.
-
-    Notes
-    -----
-    The map is printed at the largest standard scale 1:N (N = 1, 2, 2.5 or 5 x 10^k)
-    at which the computed area fits the map field, so a ruler on the printed A4 sheet
-    measures ground distances as N x paper distance. Nothing is recomputed: values
-    come from the result.
-
-    References
-    ----------
-    .. [1] ISO 7200:2004. Technical product documentation - Data fields in title blocks
-       and document headers. International Organization for Standardization, Geneva.
-    .. [2] ISO 5455:1979. Technical drawings - Scales. International Organization for
-       Standardization, Geneva.
-    .. [3] ISO 5457:1999. Technical product documentation - Sizes and layout of drawing
-       sheets. International Organization for Standardization, Geneva.
+    list of matplotlib.figure.Figure
+        The A4-landscape map sheet, then as many continuation pages as the validity
+        warnings of this sea state need (every warning is printed; none is cut).
     """
     name = sea_name(result, sea)
     info = sea_info(result, name)
     fig = new_figure()
     fw, fh = fig.get_size_inches()
-    # ISO 5457 frame: 20 mm filing margin on the left, 10 mm elsewhere.
-    left, right, bottom, top = 20 * MM, fw - 10 * MM, 10 * MM, fh - 10 * MM
-    fig.add_artist(Rectangle((left / fw, bottom / fh), (right - left) / fw, (top - bottom) / fh,
-                             fill=False, edgecolor=INK, linewidth=1.2))
+    left, right, bottom, top = _frame(fig)
 
     tb_height = sum(TB_ROWS)
     side_w = 2.75
@@ -184,7 +166,7 @@ def pdf_sheet(result, scenario, sea, path, sheet_number=1, sheet_count=1, show="
     dx, dy = float(x.max() - x.min()), float(y.max() - y.min())
     min_n = max(dx / (map_box[2] * 0.0254), dy / (map_box[3] * 0.0254))
     scale = standard_scale(min_n)
-    drawn = draw_map(fig, map_box, result, scenario, name, show=show, scale=scale,
+    drawn = draw_map(fig, map_box, result, name, show=show, scale=scale,
                      label_fontsize=6.5, halign="center", valign="center")
     draw_colorbar(fig, drawn)
     # The heading sits just above the map (which is centred in its field).
@@ -203,25 +185,28 @@ def pdf_sheet(result, scenario, sea, path, sheet_number=1, sheet_count=1, show="
     if drawn["points"]:
         y_notes -= draw_point_table(fig, drawn, (side_x, y_notes), side_w, fontsize=6.8,
                                     max_rows=12) + 0.15
-    warns = warning_lines(result) or ["None reported for this result."]
+    warns = warning_lines(result, sea=name)
     room = y_notes - (bottom + tb_height + 0.15)
-    # The cautions are printed in full whatever happens; the warnings get the rest.
+    # The cautions are printed in full whatever happens; the warnings get the rest and
+    # continue on further pages.
     caution_h = _block_height(list(CAUTIONS), side_w, 6.8)
     size = 6.8
     while caution_h > room - 0.6 and size > 5.0:
         size -= 0.4
         caution_h = _block_height(list(CAUTIONS), side_w, size)
-    used = _text_block(fig, side_x, y_notes, side_w, room - caution_h - 0.12,
-                       "Validity warnings", warns, fontsize=size)
+    used, rest = _text_block(fig, side_x, y_notes, side_w, room - caution_h - 0.12,
+                             f"Validity warnings ({len(warns)})",
+                             warns or ["None reported for this sea state."], fontsize=size)
     _text_block(fig, side_x, y_notes - used - 0.12, side_w, caution_h + 0.05, "Cautions",
                 list(CAUTIONS), fontsize=size)
 
-    _title_block(fig, right - TB_WIDTH, bottom, result, scenario, info, scale,
+    _title_block(fig, right - TB_WIDTH, bottom, result, info, scale,
                  sheet_number, sheet_count, name)
     # Left of the title block: provenance.
     prov_w = (right - TB_WIDTH) - left - 0.15
-    prov = [f"Scenario file: {result.attrs.get('scenario', '') or getattr(scenario, 'path', '') or '(built in code)'}",
-            f"Created: {result.attrs.get('created', '')}",
+    prov = [f"Scenario file: {result.attrs.get('scenario', '') or '(built in code)'}",
+            f"Computed with harbor {result.attrs.get('harbor_version', '')} on "
+            f"{result.attrs.get('created', '')}",
             f"Work CRS: {crs_label(result)}; meridian convergence "
             f"{float(result.attrs.get('convergence_deg', 0.0) or 0.0):+.3f}\u00b0 "
             "(north arrow shows true north)",
@@ -230,9 +215,135 @@ def pdf_sheet(result, scenario, sea, path, sheet_number=1, sheet_count=1, show="
             "printed scale."]
     _text_block(fig, left + 0.1, bottom + tb_height - 0.05, prov_w, tb_height - 0.1,
                 "Provenance", prov, fontsize=6.2, colour=MUTED, bullet="")
+    pages = [fig]
+    pages += text_pages(f"Validity warnings for sea state '{name}' (continued)", rest,
+                        result.attrs.get("title", ""))
+    return pages
+
+
+def _frame(fig):
+    """Draw the ISO 5457 frame (20 mm filing margin on the left, 10 mm elsewhere);
+    returns its (left, right, bottom, top) in inches."""
+    fw, fh = fig.get_size_inches()
+    left, right, bottom, top = 20 * MM, fw - 10 * MM, 10 * MM, fh - 10 * MM
+    fig.add_artist(Rectangle((left / fw, bottom / fh), (right - left) / fw, (top - bottom) / fh,
+                             fill=False, edgecolor=INK, linewidth=1.2))
+    return left, right, bottom, top
+
+
+def text_pages(heading, items, title="", fontsize=8.0, columns=2):
+    """A4-landscape pages listing ``items`` in full (as many pages as they need).
+
+    Parameters
+    ----------
+    heading : str
+        Printed at the top of each page.
+    items : sequence of str
+        The entries (warnings, cautions); each is wrapped, never cut.
+    title : str
+        The scenario title, printed small above the heading.
+    fontsize : float
+        Text size, pt.
+    columns : int
+        Text columns per page.
+
+    Returns
+    -------
+    list of matplotlib.figure.Figure
+        Empty when there are no items.
+    """
+    items = list(items)
+    pages = []
+    while items:
+        fig = new_figure()
+        fw, fh = fig.get_size_inches()
+        left, right, bottom, top = _frame(fig)
+        if title:
+            fig.text((left + 0.2) / fw, (top - 0.2) / fh, str(title), fontsize=8, color=MUTED,
+                     va="top")
+        fig.text((left + 0.2) / fw, (top - 0.4) / fh, heading, fontsize=12, fontweight="bold",
+                 color=INK, va="top")
+        col_w = (right - left - 0.4 - 0.3 * (columns - 1)) / columns
+        for c in range(columns):
+            if not items:
+                break
+            x = left + 0.2 + c * (col_w + 0.3)
+            last = c == columns - 1
+            _, items = _text_block(fig, x, top - 0.85, col_w, top - 0.85 - bottom - 0.2, "",
+                                   items, fontsize=fontsize,
+                                   more="continued on the next page" if last
+                                   else "continued in the next column")
+        pages.append(fig)
+    return pages
+
+
+def write_pdf(pages, path, title="", subject=DOCUMENT_TYPE):
+    """Write figures as the pages of one PDF file, atomically.
+
+    Parameters
+    ----------
+    pages : sequence of matplotlib.figure.Figure
+    path : str or os.PathLike
+    title, subject : str
+        PDF metadata.
+
+    Returns
+    -------
+    pathlib.Path
+    """
+    from matplotlib.backends.backend_pdf import PdfPages
+
     with atomic_path(path) as tmp:
-        fig.savefig(tmp, format="pdf", facecolor="white",
-                    metadata={"Title": f"{info['name']} - {result.attrs.get('title', '')}",
-                              "Author": f"harbor {result.attrs.get('harbor_version', '')}",
-                              "Subject": DOCUMENT_TYPE, "Creator": "harbor"})
+        with PdfPages(tmp, metadata={"Title": title, "Subject": subject,
+                                     "Creator": "harbor"}) as pdf:
+            for fig in pages:
+                pdf.savefig(fig, facecolor="white")
     return Path(path)
+
+
+def pdf_sheet(result, sea, path, sheet_number=1, sheet_count=1, show="kd", keep=None):
+    """Write the A4-landscape PDF sheet of one sea state (more pages if the warnings
+    need them).
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+        Solved result from :func:`harbor.solve`; nothing else is needed.
+    sea : str, int or Sea
+        The sea state.
+    path : str or os.PathLike
+        Output PDF file; written atomically.
+    sheet_number, sheet_count : int
+        Printed as "n / N" in the title block.
+    show : {"kd", "height"}
+        Colour by K' or by wave height (m).
+    keep : dict, optional
+        When given, ``keep[sea name]`` receives the drawn pages (for the report).
+
+    Returns
+    -------
+    pathlib.Path
+        The written file.
+
+    Notes
+    -----
+    The map is printed at the largest standard scale 1:N (N = 1, 2, 2.5 or 5 x 10^k)
+    at which the computed area fits the map field, so a ruler on the printed A4 sheet
+    measures ground distances as N x paper distance. Nothing is recomputed: values
+    come from the result. Every validity warning of the sea state is printed: those
+    that do not fit beside the map continue on a second page.
+
+    References
+    ----------
+    .. [1] ISO 7200:2004. Technical product documentation - Data fields in title blocks
+       and document headers. International Organization for Standardization, Geneva.
+    .. [2] ISO 5455:1979. Technical drawings - Scales. International Organization for
+       Standardization, Geneva.
+    .. [3] ISO 5457:1999. Technical product documentation - Sizes and layout of drawing
+       sheets. International Organization for Standardization, Geneva.
+    """
+    name = sea_name(result, sea)
+    pages = sheet_pages(result, name, sheet_number, sheet_count, show)
+    if keep is not None:
+        keep[name] = pages
+    return write_pdf(pages, path, title=f"{name} - {result.attrs.get('title', '')}")

@@ -266,11 +266,39 @@ def build(barriers, box, h, grade=True, grade_radius=4.0, grade_finest=0.1,
     T = T.copy()
     T[cw, 1], T[cw, 2] = T[cw, 2], T[cw, 1].copy()
 
-    # Duplicate the slit nodes. Each triangle corner is a graph vertex; two corners at the
-    # same node are joined when their triangles share an edge through that node that is
-    # not a barrier edge. The connected components are the new nodes: a node off the
-    # barriers keeps one component, a node inside a barrier gets one per side, a free tip
-    # (one barrier edge) keeps one.
+    points, triangles = split_slits(P, T, bedges)
+    segments = np.stack([bnodes[bedges[:, 0]], bnodes[bedges[:, 1]]], axis=1)
+    return SlitMesh(points=points, triangles=triangles, delaunay=tri, box=tuple(box),
+                    segments=segments)
+
+
+def split_slits(P, T, bedges):
+    """Duplicate the nodes along constrained edges so that each side has its own copy.
+
+    Parameters
+    ----------
+    P : numpy.ndarray, shape (n, 2)
+        Node coordinates (m).
+    T : numpy.ndarray, shape (nt, 3)
+        Counter-clockwise triangles (node indices), a conforming triangulation in which
+        every row of ``bedges`` is an edge.
+    bedges : numpy.ndarray, shape (m, 2)
+        The slit edges (node index pairs).
+
+    Returns
+    -------
+    points : numpy.ndarray, shape (2, n_new)
+    triangles : numpy.ndarray, shape (3, nt)
+        Same triangles in the same order, indexing ``points``.
+
+    Notes
+    -----
+    Each triangle corner is a graph vertex; two corners at the same node are joined when
+    their triangles share an edge through that node that is not a slit edge. The
+    connected components are the new nodes: a node off the slits keeps one component, a
+    node inside a slit gets one per side, a free tip (one slit edge) keeps one.
+    """
+    n = len(P)
     nt = len(T)
     corner = np.arange(3 * nt).reshape(nt, 3)
     # For each triangle edge (i, i+1) record both corners it touches.
@@ -297,6 +325,4 @@ def build(barriers, box, h, grade=True, grade_radius=4.0, grade_finest=0.1,
     old[lab] = T.ravel()
     points = P[old].T.copy()
     triangles = lab.reshape(nt, 3).T.copy()
-    segments = np.stack([bnodes[bedges[:, 0]], bnodes[bedges[:, 1]]], axis=1)
-    return SlitMesh(points=points, triangles=triangles, delaunay=tri, box=tuple(box),
-                    segments=segments)
+    return points, triangles

@@ -16,11 +16,11 @@ from __future__ import annotations
 import numpy as np
 import shapely
 
+from harbor.cautions import Notice
 from harbor.errors import InputError
-from harbor.solver.field import solve_field
-from harbor.solver.layout import BEND_DIFFRACTION_DEG, edge_on_arms
+from harbor.solver.layout import edge_on_arms
 
-__all__ = ["accuracy_warnings", "field_method_solve", "field_method_notes",
+__all__ = ["accuracy_warnings", "invalid_mask", "field_method_solve", "field_method_notes",
            "MAX_FIELD_WAVELENGTHS"]
 
 #: Largest side of the field method's region, in wavelengths. A square of this side (plus
@@ -67,9 +67,9 @@ ENTRANCE_WAVELENGTHS = 5.0
 OVERLAP_CHANNEL_WAVELENGTHS = 4.0
 #: A bend of an arm turning by at least this (degrees) ...
 BEND_DEG = 30.0
-#: ... within this many wavelengths (along the arm) of a free head is off (measured: bends
-#: of 30-90 deg 1-6 L from the head: 10-40 % of the lee off when treated as straight,
-#: 36-82 % with half-plane terms; gentler bends, now treated as straight, 0-16 %).
+#: ... within this many wavelengths (along the arm) of a free head is off (measured with
+#: the wedge treatment at 90 deg: bends of 30-60 deg 1-6 L from the head 4-25 % of the
+#: lee off, against 19-65 % before; gentler bends 0 %; docs/accuracy.md sect. 3a).
 BEND_NEAR_HEAD_WAVELENGTHS = 6.0
 #: Angles within this of a threshold (degrees) count as at the threshold: the layouts of
 #: the table sit exactly on them.
@@ -124,6 +124,10 @@ def _entrance_pairs(layout, L):
     return out
 
 
+def _ix(arms, arm):
+    return next(k for k, a in enumerate(arms) if a is arm)
+
+
 def accuracy_warnings(layout, wavelength, directions=()):
     """Warnings where a layout lies in the measured bad part of the general method.
 
@@ -140,7 +144,7 @@ def accuracy_warnings(layout, wavelength, directions=()):
 
     Returns
     -------
-    list of str
+    list of harbor.cautions.Notice
         One sentence per finding, naming the arm(s) and the error measured for that
         class of layout against the full-field solution; empty when the layout is in
         the measured good region.
@@ -182,16 +186,35 @@ def accuracy_warnings(layout, wavelength, directions=()):
     shelter afforded by breakwaters. Philosophical Transactions of the Royal Society of
     London A 244(882), 236-253.
     """
-    from harbor.solver.layout import classic_entrance
+    from harbor.solver.layout import active_layout, classic_entrance
 
+    layout, _ = active_layout(layout)       # arms wholly on land do nothing
     L = float(wavelength)
     if not (np.isfinite(L) and L > 0):
         raise InputError(f"wavelength must be a positive length in m, got {wavelength!r}",
                          key="wavelength")
     if not layout.arms or classic_entrance(layout, L) is not None:
         return []
+    return [n for n, _ in _findings(layout, wavelength, directions)]
+
+
+def _findings(layout, wavelength, directions=()):
+    """The notices of :func:`accuracy_warnings`, each with the indices of the arms (of
+    :func:`harbor.solver.layout.active_layout`) it concerns."""
+    from harbor.solver.layout import active_layout, classic_entrance
+
+    layout, _ = active_layout(layout)
+    L = float(wavelength)
+    if not layout.arms or classic_entrance(layout, L) is not None:
+        return []
     ref = "docs/accuracy.md sect. 3"
     out = []
+    where = []
+
+    def add(arm_indices, notice):
+        out.append(notice)
+        where.append(set(arm_indices))
+
     arms = layout.arms
     n_free = [(not a.rooted_start) + (not a.rooted_end) for a in arms]
 
@@ -199,11 +222,11 @@ def accuracy_warnings(layout, wavelength, directions=()):
     for arm, nf in zip(arms, n_free):
         length = _arm_length(arm)
         if nf == 2 and length < SHORT_ARM_WAVELENGTHS * L:
-            out.append(
-                f"arm '{arm.name}' is a detached breakwater {length:.0f} m long "
+            add({_ix(arms, arm)}, Notice(
+                "detached-short", f"arm '{arm.name}' is a detached breakwater {length:.0f} m long "
                 f"({length / L:.1f} L, under {SHORT_ARM_WAVELENGTHS:g} L): the general method "
                 f"was measured off by more than 0.05 in K' over 16-42 % of the lee of a "
-                f"1 L breakwater (median 0.02-0.04, up to 0.3 beside the heads; {ref})")
+                f"1 L breakwater (median 0.02-0.04, up to 0.3 beside the heads; {ref})"))
 
     # pairs of heads: overlapping heads and narrow misaligned entrances
     pairs = _entrance_pairs(layout, L)
@@ -213,23 +236,23 @@ def accuracy_warnings(layout, wavelength, directions=()):
         if overlap:
             gap = min(abs(_cross(hj - hi, vi)), abs(_cross(hi - hj, vj)))
             if gap <= OVERLAP_CHANNEL_WAVELENGTHS * L * (1 + 1e-9):
-                out.append(
-                    f"the heads of {names} overlap, with a channel {gap:.0f} m "
+                add({i, j}, Notice(
+                    "overlapping-heads", f"the heads of {names} overlap, with a channel {gap:.0f} m "
                     f"({gap / L:.1f} L) wide between them: the general method misses the "
                     f"waves trapped between the arms and was measured off by more than 0.05 "
                     f"in K' over 17-92 % of such a lee (median 0.01-0.39, up to 0.6-1.9; "
-                    f"{ref})")
+                    f"{ref})"))
             continue
         axis = (hj - hi) / width
         mis = max(np.degrees(np.arccos(np.clip(-np.dot(vi, axis), -1, 1))),
                   np.degrees(np.arccos(np.clip(np.dot(vj, axis), -1, 1))))
         if (mis >= MISALIGNED_DEG - _ANGLE_SLACK
                 and width <= MISALIGNED_NARROW_WAVELENGTHS * L * (1 + 1e-9)):
-            out.append(
-                f"the entrance between {names} is {width:.0f} m ({width / L:.1f} L) wide "
+            add({i, j}, Notice(
+                "misaligned-entrance", f"the entrance between {names} is {width:.0f} m ({width / L:.1f} L) wide "
                 f"with heads misaligned by {mis:.0f} deg: the general method was measured "
                 f"off by more than 0.05 in K' over 22-34 % of such a lee even for waves "
-                f"near normal to it (median 0.02-0.035, up to 0.2; {ref})")
+                f"near normal to it (median 0.02-0.035, up to 0.2; {ref})"))
 
     # bends near a free head
     for arm in arms:
@@ -250,15 +273,13 @@ def accuracy_warnings(layout, wavelength, directions=()):
             if not arm.rooted_end:
                 along.append(cum[-1] - cum[k])
             if along and min(along) <= BEND_NEAR_HEAD_WAVELENGTHS * L:
-                how = ("with half-plane solutions" if turn >= BEND_DIFFRACTION_DEG
-                       else "as straight")
-                share = "36-82 %" if turn >= BEND_DIFFRACTION_DEG else "10-40 %"
-                out.append(
-                    f"arm '{arm.name}' bends by {turn:.0f} deg {min(along):.0f} m "
+                add({_ix(arms, arm)}, Notice(
+                    "bend-near-head", f"arm '{arm.name}' bends by {turn:.0f} deg {min(along):.0f} m "
                     f"({min(along) / L:.1f} L) from its head: the general method treats "
-                    f"the bend {how} and was measured off by more than 0.05 in K' over "
-                    f"{share} of the lee of such a dog-leg (up to 0.3-0.6 near the bend; "
-                    f"{ref})")
+                    f"the bend as a wedge, with the head's wave diffracted again at the "
+                    f"bend, and was measured off by more than 0.05 in K' over 4-25 % of "
+                    f"the lee of such a dog-leg at 90 deg (up to 0.1-0.14 near the bend; "
+                    f"{ref})"))
 
     # direction-dependent rules
     partners = set()
@@ -275,25 +296,25 @@ def accuracy_warnings(layout, wavelength, directions=()):
             graze = [k for k in range(len(seg))
                      if _line_angle_deg(_unit(seg[k]), d) < GRAZING_DEG]
             if graze:
-                out.append(
-                    f"waves of {label} run within {GRAZING_DEG:g} deg of parallel to arm "
+                add({i}, Notice(
+                    "grazing", f"waves of {label} run within {GRAZING_DEG:g} deg of parallel to arm "
                     f"'{arm.name}': at such grazing incidence the general method was "
                     f"measured up to 0.6-2.0 off in K' (mostly too high) beyond the head "
-                    f"({ref})")
+                    f"({ref})"))
                 continue
             short = nf == 2 and _arm_length(arm) < OBLIQUE_ARM_WAVELENGTHS * L
             for tip, inward in arm.heads():
                 works = short or (i, tuple(tip)) in partners
                 ang = _line_angle_deg(inward, d)
                 if works and ang <= OBLIQUE_DEG + _ANGLE_SLACK:
-                    out.append(
-                        f"waves of {label} run {ang:.0f} deg to the line of arm "
+                    add({i}, Notice(
+                        "oblique-head", f"waves of {label} run {ang:.0f} deg to the line of arm "
                         f"'{arm.name}' at its head, whose diffraction works with another "
                         f"head's: within {OBLIQUE_DEG:g} deg the general method was "
                         f"measured off by more than 0.05 in K' over 19-76 % of the lee "
-                        f"(median 0.03-0.07, up to 0.15-0.4; {ref})")
+                        f"(median 0.03-0.07, up to 0.15-0.4; {ref})"))
                     break
-    return out
+    return list(zip(out, where))
 
 
 # ---------------------------------------------------------------------------------------
@@ -433,15 +454,15 @@ def field_method_notes(scenario, sea=None, points_per_wavelength=10.0):
     _, loose = _field_barriers(scenario.layout, L / float(points_per_wavelength))
     out = []
     if scenario.layout.lands:
-        out.append("field method: land edges are fully reflecting walls (the screening "
+        out.append(Notice("field-land-walls", "field method: land edges are fully reflecting walls (the screening "
                    "methods neglect reflection from land), so a closed basin can show "
                    "standing waves the screening maps do not; land and rooted arms that "
                    "run out of the solved area towards the waves act as if cut off at "
-                   "its edge")
+                   "its edge", level="note"))
     for name in loose:
-        out.append(f"field method: arm '{name}' has an end declared rooted but on neither "
+        out.append(Notice("field-loose-end", f"field method: arm '{name}' has an end declared rooted but on neither "
                    f"modelled land nor another arm; the field method lets that end "
-                   f"diffract as a free head")
+                   f"diffract as a free head"))
     return out
 
 
@@ -534,6 +555,10 @@ def field_method_solve(scenario, sea, px, py, points_per_wavelength=10.0):
     # significant digits for the triangulation at a mesh edge of a few metres. Moving the
     # origin multiplies the whole solution by the incident phase there.
     o = np.array([0.5 * (region[0] + region[2]), 0.5 * (region[1] + region[3])])
+    # imported here: the finite-element stack is only needed by --method field, and every
+    # solve (harbor check included) imports this module for its validity rules
+    from harbor.solver.field import solve_field
+
     sol = solve_field([b - o for b in barriers], L, alpha,
                       (region[0] - o[0], region[1] - o[1], region[2] - o[0], region[3] - o[1]),
                       points_per_wavelength=points_per_wavelength)
@@ -543,3 +568,69 @@ def field_method_solve(scenario, sea, px, py, points_per_wavelength=10.0):
     dry = scenario.layout.in_land(x, y)
     u[dry] = np.nan
     return u.reshape(shape)
+
+
+#: Around the heads and bends of the arms a finding concerns, values within this many
+#: wavelengths are outside the measured validity even where the incident wave reaches.
+INVALID_NEAR_WAVELENGTHS = 1.0
+
+
+def invalid_mask(layout, wavelength, direction, px, py, label=None):
+    """Where the general method is outside its measured validity for one sea state.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+    wavelength : float
+        L (m).
+    direction : float
+        Direction of wave travel (rad, math angle in the work frame).
+    px, py : numpy.ndarray
+        Points (m, work frame), 1-D.
+    label : str, optional
+        How the notices name the sea state (e.g. ``"sea 'storm SW'"``).
+
+    Returns
+    -------
+    mask : numpy.ndarray of bool
+        True where a finding of :func:`accuracy_warnings` applies.
+    notices : list of harbor.cautions.Notice
+        The findings (the same as :func:`accuracy_warnings` for this direction).
+
+    Notes
+    -----
+    The errors of the table (docs/accuracy.md sect. 3) were measured over the lee, and
+    they come from the heads and bends whose interaction the method misses. So a finding
+    marks the points that the diffracted waves of the arms it concerns reach -- in line
+    of sight of one of their free heads or bends -- and that are in the geometric shadow
+    of the layout (the incident wave does not reach them), plus every point within
+    :data:`INVALID_NEAR_WAVELENGTHS` wavelength of those heads and bends. Points in open
+    water that the incident wave reaches, away from them, keep their validity (there the
+    incident and reflected waves dominate). Pure geometry.
+    """
+    from harbor.geometry.visibility import layout_segments, ray_blocked, segment_blocked
+    from harbor.solver.layout import active_layout
+
+    px = np.asarray(px, float)
+    py = np.asarray(py, float)
+    found = _findings(layout, wavelength,
+                      [(label, float(direction)) if label else float(direction)])
+    mask = np.zeros(px.shape, bool)
+    if not found or px.size == 0:
+        return mask, [n for n, _ in found]
+    lay, _ = active_layout(layout)
+    segments, _, open_ends = layout_segments(lay)
+    d = np.array([np.cos(direction), np.sin(direction)])
+    shadow = ray_blocked(px, py, -d, segments, open_ends=open_ends)
+    arms = set().union(*[w for _, w in found])
+    for i in arms:
+        arm = lay.arms[i]
+        p = np.asarray(arm.line, float)
+        keep = np.ones(len(p), bool)
+        keep[0] = not arm.rooted_start
+        keep[-1] = not arm.rooted_end
+        for v in p[keep]:
+            near = np.hypot(px - v[0], py - v[1]) < INVALID_NEAR_WAVELENGTHS * wavelength
+            seen = ~segment_blocked(px, py, v[0], v[1], segments)
+            mask |= near | (shadow & seen)
+    return mask, [n for n, _ in found]

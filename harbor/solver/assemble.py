@@ -14,12 +14,13 @@ import shapely
 import xarray as xr
 
 from harbor import __version__
-from harbor.cautions import REFLECTION_NOTE, caution_text
+from harbor.cautions import REFLECTION_NOTE, Notice, as_notice, caution_text
 from harbor.geometry.visibility import distance_to_arms, inside_land
 from harbor.errors import InputError
-from harbor.solver.accuracy import accuracy_warnings
+from harbor.solver.accuracy import accuracy_warnings, invalid_mask  # noqa: F401
 from harbor.solver.layout import METHOD_GENERAL, layout_field, layout_warnings
 from harbor.solver.random import random_sea_field
+from harbor.solver.resolution import grid_notices
 from harbor.waves.dispersion import wavelength as _wavelength
 from harbor.waves.spectra import BM_PEAK_RATIO, jonswap_peak_period, random_components
 
@@ -139,7 +140,67 @@ def solve_sea(scenario, sea, px, py, method="auto", progress=None):
     return res.kd, res.period_ratio, name, res.reaching
 
 
-def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=None):
+def given_points(scenario, points, key="points"):
+    """Check and convert points given in the scenario's CRS to the work frame.
+
+    Parameters
+    ----------
+    scenario : harbor.study.scenario.Scenario
+    points : sequence of (name, x, y)
+        x first: easting or longitude (scenario CRS).
+    key : str
+        What to name in a message (``"--at"`` from the command line).
+
+    Returns
+    -------
+    list of (name, x, y)
+        Work frame (m).
+
+    Raises
+    ------
+    harbor.errors.InputError
+        A lon/lat out of range, a point outside the CRS's domain, or a point on land, on
+        an arm, on a head or a vertex (:func:`harbor.geometry.checks.point_problems`,
+        the rule the scenario reader applies to its ``[[point]]`` tables).
+    """
+    from harbor.geometry import checks
+    from harbor.geometry.site import lonlat_problem
+
+    site = scenario.site
+    out = []
+    for name, x, y in points or ():
+        x, y = float(x), float(y)
+        if not (np.isfinite(x) and np.isfinite(y)):
+            raise InputError(f"point '{name}': coordinates must be finite numbers, got "
+                             f"{x:g} {y:g}", file=scenario.path or None, key=key)
+        if site.is_lonlat:
+            prob = lonlat_problem(x, y)
+            if prob:
+                raise InputError(f"point '{name}': {prob}", file=scenario.path or None, key=key)
+        wx, wy = site.to_work(np.array([x]), np.array([y]))
+        wx, wy = float(np.atleast_1d(wx)[0]), float(np.atleast_1d(wy)[0])
+        if not (np.isfinite(wx) and np.isfinite(wy)):
+            raise InputError(f"point '{name}' ({x:g}, {y:g}) is outside the domain of CRS "
+                             f"{site.crs_code}", file=scenario.path or None, key=key)
+        out.append((str(name), wx, wy))
+    if out:
+        xy = np.array([(p[1], p[2]) for p in out])
+        tol = checks.layout_tolerance(scenario.layout, [np.array(scenario.points[0].at)]
+                                      if scenario.points else ())
+        try:
+            checks.check_points(scenario.layout, xy, tol)
+        except checks.GeometryError as e:
+            name, x, y = points[e.index][0], points[e.index][1], points[e.index][2]
+            shown = f"({float(x):.6g}, {float(y):.6g})" if site.is_lonlat else \
+                f"({float(x):.2f}, {float(y):.2f})"
+            msg = e.text(lambda _: shown).replace("the point ", f"point '{name}' ", 1)
+            raise InputError(msg,
+                             file=scenario.path or None, key=key) from None
+    return out
+
+
+def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=None,
+          replace_points=False):
     """Solve every sea state (or one) of a scenario over its grid and at its points.
 
     Parameters
@@ -149,8 +210,10 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
     sea : str, optional
         Name of one sea state; default all.
     points : sequence of (name, x, y), optional
-        Extra points in the scenario's CRS (x first: easting or longitude); default the
-        scenario's named points only.
+        Points in the scenario's CRS (x first: easting or longitude). They are ADDED
+        after the scenario's own points (``replace_points=True``: used instead of
+        them). Checked like the scenario's ``[[point]]`` tables: a point on land, on
+        an arm, a head or a vertex raises :class:`harbor.errors.InputError`.
     grid : bool
         Compute the grid (False: points only, much faster).
     method : {"auto", "general", "superposition", "exact", "field"}
@@ -159,6 +222,8 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         result (:func:`harbor.solver.accuracy.field_method_solve`).
     progress : callable, optional
         ``progress(sea_name, done, total)``.
+    replace_points : bool
+        With ``points``: solve only at those, leaving out the scenario's points.
 
     Returns
     -------
@@ -169,7 +234,11 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         ``point_kd``, ``point_height``, ``point_period_ratio`` (sea, point); per sea
         ``sea_kind``, ``sea_height``, ``sea_period``, ``sea_from`` (deg true),
         ``sea_spreading``, ``sea_method``, ``sea_wavelength`` (m), ``sea_reaching`` (share
-        of energy reaching the layout). Attributes: ``title``, ``scenario``, ``crs``,
+        of energy reaching the layout); ``valid`` (sea, y, x) and ``point_valid`` (sea,
+        point), True where the value is inside the measured validity of its method;
+        the validity warnings and notes as records along dimension ``notice``
+        (``notice_code``, ``notice_text``, ``notice_sea`` and ``notice_point``, "" for
+        all or none, ``notice_level``; read them with :func:`notices`). Attributes: ``title``, ``scenario``, ``crs``,
         ``crs_wkt``, ``convergence_deg``, ``scale_factor`` (work-frame length over ground
         length at the site), ``ground_crs_wkt`` (the local frame of the computation),
         ``depth``, ``warnings`` (newline-joined),
@@ -180,10 +249,14 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         seas = [scenario.sea(sea)]
     site = scenario.site
     pts = [(p.name, float(p.at[0]), float(p.at[1]), p.limit) for p in scenario.points]
-    if points:
-        for name, x, y in points:
-            wx, wy = site.to_work(np.array([x]), np.array([y]))
-            pts.append((name, float(wx[0]), float(wy[0]), None))
+    extra = given_points(scenario, points)
+    if points and replace_points:
+        pts = []
+    pts += [(name, wx, wy, None) for name, wx, wy in extra]
+    if len({p[0] for p in pts}) < len(pts):
+        dup = next(n for n in (p[0] for p in pts) if [q[0] for q in pts].count(n) > 1)
+        raise InputError(f"two points are named '{dup}'", file=scenario.path or None,
+                         key="points")
     pnames = [p[0] for p in pts]
     ppx = np.array([p[1] for p in pts], float)
     ppy = np.array([p[2] for p in pts], float)
@@ -205,7 +278,9 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
     pkd = np.full((ns, npnt), np.nan)
     pratio = np.full((ns, npnt), np.nan)
     methods, wavelengths, reaching = [], [], []
-    warnings: list[str] = []
+    notes: list[Notice] = []
+    valid = np.ones((ns, ny, nx), bool)
+    pvalid = np.ones((ns, npnt), bool)
     wet = ~dry
     allx = np.concatenate([X[wet], ppx])
     ally = np.concatenate([Y[wet], ppy])
@@ -217,7 +292,8 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
                                                         np.atleast_1d(gpy))]
     note = site.scale_note()
     if note:
-        warnings.append(note)
+        # lengths were corrected: a note, the values are right
+        notes.append(Notice("crs-scale", note, level="note"))
     for i, s in enumerate(seas):
         cb = None
         if progress is not None:
@@ -232,21 +308,36 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         L = _sea_wavelength(s, site)
         wavelengths.append(L)
         reaching.append(reach)
-        more = layout_warnings(ground.layout, L, gpts)
+        more = list(layout_warnings(ground.layout, L, gpts))
+        gspec = scenario.grid
+        if gspec is not None and getattr(gspec, "ground_spacing", None):
+            gspec = dataclasses.replace(gspec, spacing=gspec.ground_spacing)
+        more += grid_notices(gspec, L, s.name)
         if method == "field":
             from harbor.solver.accuracy import field_method_notes
 
             more += field_method_notes(ground, s)
         else:
             alpha = float(ground.site.travel_angle(s.from_deg))
-            more += accuracy_warnings(ground.layout, L, directions=[(f"sea '{s.name}'", alpha)])
+            # measured outside the method's validity: the lee that the concerned heads'
+            # and bends' waves reach, and their near field (accuracy.invalid_mask)
+            bad, off = invalid_mask(ground.layout, L, alpha, allx, ally,
+                                    label=f"sea '{s.name}'")
+            if off:
+                nw = int(wet.sum())
+                valid[i][wet] = ~bad[:nw]
+                pvalid[i] = ~bad[nw:]
+            more += off
         for w in more:
-            if w not in warnings:
-                warnings.append(w)
+            w = as_notice(w).for_sea(s.name)
+            if w.code == "near-head" and w.point in pnames:
+                pvalid[i, pnames.index(w.point)] = False
+            notes.append(w)
         if reach < 0.5:
-            warnings.append(f"sea '{s.name}' (from {s.from_deg:g} deg) mostly does not reach "
-                            f"the harbour from open water ({100 * reach:.0f} % of its energy "
-                            f"does): its heights inside are small or zero")
+            notes.append(Notice(
+                "not-reaching", f"sea '{s.name}' (from {s.from_deg:g} deg) mostly does not "
+                f"reach the harbour from open water ({100 * reach:.0f} % of its energy "
+                f"does): its heights inside are small or zero", sea=s.name))
         hb = BREAKING_RATIO * site.depth
         over_pts = [pnames[j] for j in range(npnt) if pkd[i, j] * s.height > hb]
         n_over = int(np.sum(kd[i] * s.height > hb))
@@ -256,10 +347,14 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
                 where.append("points " + ", ".join(f"'{n}'" for n in over_pts))
             if n_over:
                 where.append(f"{n_over} grid points")
-            warnings.append(f"sea '{s.name}': heights above the depth-limited breaking height "
-                            f"0.78 h = {hb:.2f} m at {' and '.join(where)} (flagged, not "
-                            f"changed: waves there would break)")
-    warnings.append(REFLECTION_NOTE)
+            notes.append(Notice(
+                "breaking", f"sea '{s.name}': heights above the depth-limited breaking "
+                f"height 0.78 h = {hb:.2f} m at {' and '.join(where)} (flagged, not "
+                f"changed: waves there would break)", sea=s.name))
+    if method != "field":
+        notes.append(Notice("reflection-neglected", REFLECTION_NOTE, level="note"))
+    # one sentence once in the joined text, whatever number of seas it concerns
+    warnings = list(dict.fromkeys(notes))
 
     H = np.array([s.height for s in seas], float)
     pcx, pcy = site.from_work(ppx, ppy) if npnt else (ppx, ppy)
@@ -290,6 +385,11 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
             sea_method=(("sea",), np.array(methods, dtype=object)),
             sea_wavelength=(("sea",), np.array(wavelengths), {"units": "m"}),
             sea_reaching=(("sea",), np.array(reaching), {"units": "1"}),
+            valid=(("sea", "y", "x"), valid,
+                   {"long_name": "value inside the measured validity of its method"}),
+            point_valid=(("sea", "point"), pvalid,
+                         {"long_name": "value inside the measured validity of its method"}),
+            **notices_variables(notes),
         ),
         coords=dict(sea=[s.name for s in seas], x=gx, y=gy, point=pnames),
         attrs=dict(
@@ -309,9 +409,213 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
             method="; ".join(sorted(set(methods))),
         ),
     )
-    ds["x"].attrs.update(units="m", long_name="easting (work frame)")
-    ds["y"].attrs.update(units="m", long_name="northing (work frame)")
+    ds["x"].attrs.update(units="m", long_name="easting (work frame)",
+                         standard_name="projection_x_coordinate", axis="X")
+    ds["y"].attrs.update(units="m", long_name="northing (work frame)",
+                         standard_name="projection_y_coordinate", axis="Y")
+    ds = ds.assign(layout_variables(scenario.layout))
+    ds.attrs["scenario_crs_is_lonlat"] = int(bool(site.is_lonlat))
+    return with_crs(ds, site.work_crs, site.work_to_lonlat)
+
+
+def layout_variables(layout):
+    """The layout as Dataset variables, so that outputs need nothing but the result.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+        Arms and land in the work frame (m).
+
+    Returns
+    -------
+    dict
+        ``arm_wkt`` (dimension ``arm``, the arm's polyline as WKT, work frame m),
+        ``arm_rooted_start``, ``arm_rooted_end`` (bool), ``land_wkt`` (dimension
+        ``land``, WKT polygon) and the free heads ``head_x``, ``head_y`` (m) and
+        ``head_arm`` (name of the arm) along dimension ``head``; coordinates ``arm``,
+        ``land`` (names).
+    """
+    import shapely
+
+    arms = list(layout.arms)
+    lands = list(layout.lands)
+    heads = layout.heads()
+    obj = dict(dtype=object)
+    return {
+        "arm_wkt": xr.DataArray(np.array([shapely.to_wkt(a.geometry, rounding_precision=4)
+                                          for a in arms], **obj), dims="arm",
+                                coords={"arm": np.array([a.name for a in arms], **obj)},
+                                attrs={"long_name": "breakwater arm polyline (WKT, work frame, m)"}),
+        "arm_rooted_start": xr.DataArray(np.array([a.rooted_start for a in arms], bool),
+                                         dims="arm"),
+        "arm_rooted_end": xr.DataArray(np.array([a.rooted_end for a in arms], bool), dims="arm"),
+        "land_wkt": xr.DataArray(np.array([shapely.to_wkt(ld.outline, rounding_precision=4)
+                                           for ld in lands], **obj), dims="land",
+                                 coords={"land": np.array([ld.name for ld in lands], **obj)},
+                                 attrs={"long_name": "land polygon (WKT, work frame, m)"}),
+        "head_x": xr.DataArray(np.array([h[2][0] for h in heads], float), dims="head",
+                               attrs={"units": "m", "long_name": "free (diffracting) head easting"}),
+        "head_y": xr.DataArray(np.array([h[2][1] for h in heads], float), dims="head",
+                               attrs={"units": "m", "long_name": "free (diffracting) head northing"}),
+        "head_arm": xr.DataArray(np.array([h[0] for h in heads], **obj), dims="head",
+                                 attrs={"long_name": "arm of the head"}),
+    }
+
+
+def crs_variable(crs):
+    """The CF grid-mapping variable of a CRS (the ``crs`` variable of a result).
+
+    Parameters
+    ----------
+    crs : pyproj.CRS
+        The work frame.
+
+    Returns
+    -------
+    xarray.DataArray
+        A scalar whose attributes are ``CRS.to_cf()`` (``grid_mapping_name``,
+        projection parameters, ``crs_wkt``) plus ``spatial_ref`` (the name GDAL reads).
+
+    References
+    ----------
+    .. [1] Eaton, B. et al. (2020). NetCDF Climate and Forecast (CF) Metadata
+       Conventions, version 1.8, section 5.6 (grid mappings).
+    """
+    def plain(v):
+        if v is None:
+            return ""
+        if isinstance(v, (bool, np.bool_)):
+            return int(v)
+        return v if isinstance(v, (int, float, str, np.integer, np.floating)) else str(v)
+
+    cf = {k: plain(v) for k, v in crs.to_cf().items()}
+    cf.setdefault("crs_wkt", crs.to_wkt())
+    cf["spatial_ref"] = cf["crs_wkt"]
+    return xr.DataArray(np.int32(0), attrs=cf)
+
+
+def with_crs(ds, crs, to_lonlat):
+    """Attach the grid mapping ``crs`` and 2-D ``lon``/``lat`` (WGS 84) to a result.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        With 1-D ``x``, ``y`` (m) in ``crs``.
+    crs : pyproj.CRS
+        The work frame.
+    to_lonlat : callable
+        ``to_lonlat(x, y) -> (lon, lat)`` in degrees.
+
+    Returns
+    -------
+    xarray.Dataset
+        The same result, the one used in memory and written to ``grid.nc``.
+    """
+    ds["crs"] = crs_variable(crs)
+    X, Y = np.meshgrid(ds["x"].values, ds["y"].values)
+    lon, lat = (to_lonlat(X, Y) if X.size else (np.zeros(X.shape), np.zeros(X.shape)))
+    ds = ds.assign_coords(
+        lon=(("y", "x"), np.asarray(lon, float).reshape(X.shape),
+             {"standard_name": "longitude", "long_name": "longitude (WGS 84)",
+              "units": "degrees_east"}),
+        lat=(("y", "x"), np.asarray(lat, float).reshape(X.shape),
+             {"standard_name": "latitude", "long_name": "latitude (WGS 84)",
+              "units": "degrees_north"}))
+    for v in ("kd", "height", "period_ratio", "valid"):
+        if v in ds:
+            ds[v].attrs["grid_mapping"] = "crs"
     return ds
+
+
+def notices_variables(notes):
+    """Dataset variables (dimension ``notice``) holding a list of notices.
+
+    Parameters
+    ----------
+    notes : sequence of harbor.cautions.Notice or str
+
+    Returns
+    -------
+    dict
+        ``notice_code``, ``notice_text``, ``notice_sea``, ``notice_point``,
+        ``notice_level``, each a tuple ``(("notice",), values)`` of strings ("" for
+        none).
+    """
+    notes = [as_notice(n) for n in notes]
+
+    def col(get):
+        return (("notice",), np.array([get(n) or "" for n in notes], dtype=object))
+
+    return dict(notice_code=col(lambda n: n.code), notice_text=col(lambda n: n.text),
+                notice_sea=col(lambda n: n.sea), notice_point=col(lambda n: n.point),
+                notice_level=col(lambda n: n.level))
+
+
+def notices(ds, sea=None, level=None):
+    """The validity warnings and notes of a result, as :class:`harbor.cautions.Notice`.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        A result of :func:`solve` (or a file written from one and read back).
+    sea : str, optional
+        Keep those that concern this sea state or every sea state.
+    level : {"warning", "note"}, optional
+        Keep only this level.
+
+    Returns
+    -------
+    list of harbor.cautions.Notice
+        In the order they were raised, each sentence once per sea state.
+    """
+    if "notice_text" not in ds:
+        text = str(ds.attrs.get("warnings", "") or "")
+        return [Notice("general", t) for t in text.split("\n") if t.strip()]
+    out = []
+    for code, text, s, p, lev in zip(*(ds[f"notice_{k}"].values.tolist() for k in
+                                        ("code", "text", "sea", "point", "level"))):
+        n = Notice(code, text, sea=s, point=p, level=lev)
+        if sea is not None and n.sea not in (None, sea):
+            continue
+        if level is not None and n.level != level:
+            continue
+        out.append(n)
+    return out
+
+
+def points_table(scenario, at=None, sea=None, method="auto"):
+    """Values at points, one record per sea state and point (what ``harbor points``
+    prints), with the method and the warnings.
+
+    Parameters
+    ----------
+    scenario : harbor.study.scenario.Scenario
+    at : sequence of (name, x, y), optional
+        Points in the scenario's CRS; when given they REPLACE the scenario's points.
+        Checked as in :func:`given_points` (messages name ``--at``).
+    sea : str, optional
+        One sea state's name (unknown names raise the did-you-mean
+        :class:`harbor.errors.InputError`).
+    method : str
+        Method override (see :func:`solve`).
+
+    Returns
+    -------
+    rows : list of dict
+        :func:`harbor.outputs.export.point_records`: sea, point, x, y (scenario CRS),
+        kd, height, period_ratio, limit, ok, valid, flags, method.
+    result : xarray.Dataset
+        The solved result (points only), for its warnings and attributes.
+    """
+    from harbor.outputs.export import point_records
+
+    if sea is not None:
+        scenario.sea(sea, key="--sea")
+    if at:
+        given_points(scenario, at, key="--at")
+    ds = solve(scenario, sea=sea, points=at or None, grid=False, method=method,
+               replace_points=bool(at))
+    return point_records(ds), ds
 
 
 def check(scenario):
@@ -323,7 +627,8 @@ def check(scenario):
 
     Returns
     -------
-    list of str
+    list of harbor.cautions.Notice
+        Each sentence once (the sea states it concerns are in its ``sea``, the first).
     """
     ds = solve(scenario, grid=False)
-    return [w for w in ds.attrs["warnings"].split("\n") if w]
+    return list(dict.fromkeys(notices(ds)))

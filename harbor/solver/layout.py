@@ -22,19 +22,21 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from harbor.cautions import Notice
 from harbor.geometry.entrance import basin_mask, nearest_heads
-from harbor.geometry.layout import Layout
+from harbor.geometry.layout import JOIN_TOLERANCE, Layout, wet_arms
 from harbor.geometry.visibility import (diffracting_edges, layout_segments, ray_blocked,
                                         segment_blocked)
 from harbor.solver.kernels.gap import AUTO_EXACT_BELOW, auto_method, gap
 from harbor.solver.kernels.sommerfeld import sommerfeld_terms
+from harbor.solver.kernels.wedge import wedge_diffracted
 
 #: Arms whose far end is not rooted still count as "long" for the classic entrance when
 #: their end segment is at least this many wavelengths long.
 LONG_ARM_WAVELENGTHS = 3.0
-#: Bends that turn an arm by at least this much (degrees) diffract; gentler bends are
-#: treated as straight (their half-plane terms made the lee worse, docs/accuracy.md).
-BEND_DIFFRACTION_DEG = 45.0
+#: Kept for compatibility: every bend now diffracts as a wedge (see :func:`general_field`);
+#: before, only bends of at least this turn (degrees) had half-plane terms.
+BEND_DIFFRACTION_DEG = 0.0
 #: An arm whose width across the direction of travel is below this many wavelengths is
 #: left out for that direction (seen edge-on, see :func:`edge_on_arms`).
 EDGE_ON_WIDTH = 0.5
@@ -58,6 +60,34 @@ class FieldInfo:
     lit_heads: int = 0
 
 
+_WET = {}
+
+
+def active_layout(layout):
+    """The layout the methods solve: without the arms that lie wholly on land.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+
+    Returns
+    -------
+    layout : harbor.geometry.layout.Layout
+        ``layout`` itself when every arm has a part in the water.
+    dry : list of str
+        Names of the arms left out (:func:`harbor.geometry.layout.wet_arms`).
+    """
+    key = id(layout)
+    hit = _WET.get(key)
+    if hit is not None and hit[0] is layout:
+        return hit[1], hit[2]
+    wet, dry = wet_arms(layout)
+    if len(_WET) > 16:
+        _WET.clear()
+    _WET[key] = (layout, wet, dry)
+    return wet, dry
+
+
 def classic_entrance(layout, wavelength):
     """The layout's classic entrance for this wavelength, or None.
 
@@ -70,20 +100,36 @@ def classic_entrance(layout, wavelength):
     Returns
     -------
     harbor.geometry.entrance.Entrance or None
-        Returned when the layout has exactly two arms, each with one free head, the heads
-        facing each other with end segments collinear within 2 degrees, each arm rooted
-        at its far end or with an end segment of at least
-        :data:`LONG_ARM_WAVELENGTHS` wavelengths.
+        Decided from the heads that form the entrance, not from the number of arms:
+        the closest pair of free heads on different arms
+        (:func:`harbor.geometry.entrance.nearest_heads`) of the arms that lie in the
+        water (:func:`active_layout`), when each of the two arms has that one free head,
+        the heads face each other with end segments collinear within 2 degrees, each arm
+        is rooted at its far end or has an end segment of at least
+        :data:`LONG_ARM_WAVELENGTHS` wavelengths, and every other arm in the water has
+        no free head and no vertex inside the basin (a seawall elsewhere on the shore
+        does not change the method). The arm indices of the result refer to
+        :func:`active_layout`'s layout.
     """
-    if len(layout.arms) != 2:
-        return None
-    if any((not a.rooted_start) + (not a.rooted_end) != 1 for a in layout.arms):
-        return None
+    layout, _ = active_layout(layout)
     ent = nearest_heads(layout)
     if ent is None or not ent.collinear:
         return None
+    for i in ent.arms:
+        a = layout.arms[i]
+        if (not a.rooted_start) + (not a.rooted_end) != 1:
+            return None
     for rooted, length in zip(ent.rooted_far_ends, ent.end_lengths):
         if not rooted and length < LONG_ARM_WAVELENGTHS * wavelength:
+            return None
+    others = [a for i, a in enumerate(layout.arms) if i not in ent.arms]
+    if others:
+        if any(not (a.rooted_start and a.rooted_end) for a in others):
+            return None
+        pts = np.concatenate([np.asarray(a.line, float) for a in others]
+                             + [0.5 * (np.asarray(a.line, float)[1:]
+                                       + np.asarray(a.line, float)[:-1]) for a in others])
+        if np.any(basin_mask(layout, ent, pts[:, 0], pts[:, 1])):
             return None
     return ent
 
@@ -160,6 +206,66 @@ def gap_field(entrance, px, py, wavelength, alpha, method="auto"):
     return phase0 * gap(x, y, wavelength, local_dir, entrance.width, method=method), method
 
 
+def entrance_blend(layout, entrance, px, py, wavelength, segments=None):
+    r"""Weight of the classic entrance's gap solution on the sea side of the entrance.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+    entrance : harbor.geometry.entrance.Entrance
+        A classic entrance (:func:`classic_entrance`).
+    px, py : numpy.ndarray
+        Points (m, work frame) outside the basin.
+    wavelength : float
+        L (m).
+    segments : tuple, optional
+        Output of :func:`harbor.geometry.visibility.layout_segments`.
+
+    Returns
+    -------
+    numpy.ndarray of float
+        w in [0, 1]: the field there is ``w u_gap + (1 - w) u_general``.
+
+    Notes
+    -----
+    The gap solution is continuous through the aperture (it solves both sides of the
+    wall), the general method is not the same field, so a switch on the entrance line
+    would leave a step (0.2-0.5 in K' on the demo). On the sea side, within
+    :math:`\rho_1 = B/2 + \min(E, L)/4` of the entrance centre (E the shorter end
+    segment) the gap solution is used, beyond :math:`\rho_2 = B/2 + \min(E, 2L)` the
+    general method, and between them the smooth step
+    :math:`w = s^2(3 - 2s)`, :math:`s = (\rho_2 - \rho)/(\rho_2 - \rho_1)`: the
+    hand-over stays over the straight, collinear end segments where both describe the
+    same wall, and the field is continuous everywhere. Points hidden from the entrance
+    centre by an arm or land get w = 0.
+    """
+    from harbor.geometry.visibility import layout_segments, segment_blocked
+
+    px = np.asarray(px, float)
+    py = np.asarray(py, float)
+    w = np.zeros(px.shape)
+    if np.allclose(entrance.basin_normal, 0) or px.size == 0:
+        return w
+    c = entrance.center
+    L = float(wavelength)
+    half = 0.5 * entrance.width
+    e = float(min(entrance.end_lengths))
+    r1 = half + 0.25 * min(e, L)
+    r2 = half + min(e, 2.0 * L)
+    rho = np.hypot(px - c[0], py - c[1])
+    side = (px - c[0]) * entrance.basin_normal[0] + (py - c[1]) * entrance.basin_normal[1]
+    near = (rho < r2) & (side <= 0)
+    if not np.any(near):
+        return w
+    if segments is None:
+        segments = layout_segments(layout)
+    idx = np.nonzero(near)[0]
+    idx = idx[~segment_blocked(px[idx], py[idx], c[0], c[1], segments[0])]
+    sgap = np.clip((r2 - rho[idx]) / (r2 - r1), 0.0, 1.0)
+    w[idx] = sgap * sgap * (3.0 - 2.0 * sgap)
+    return w
+
+
 def edge_on_arms(layout, direction, wavelength):
     """Indices of the arms that the waves see (nearly) edge-on.
 
@@ -217,7 +323,40 @@ def head_visibility(layout, px, py, segments=None):
             for v, _ in diffracting_edges(layout)]
 
 
-def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None):
+def bend_sector(dirs, up_angle):
+    """The water sector of a bend that the waves strike.
+
+    Parameters
+    ----------
+    dirs : tuple of numpy.ndarray
+        Unit vectors from the bend along its two segments.
+    up_angle : float
+        Direction the waves come from (rad, math angle).
+
+    Returns
+    -------
+    face0 : float
+        Math angle (rad) of the face the sector starts from (counter-clockwise).
+    water : float
+        Angle of the sector (rad), pi plus or minus the bend's turn.
+    phi0 : float
+        Direction the waves come from, counter-clockwise from ``face0`` (rad), kept a
+        hair inside the sector.
+    """
+    a0 = float(np.arctan2(dirs[0][1], dirs[0][0]))
+    a1 = float(np.arctan2(dirs[1][1], dirs[1][0]))
+    w = np.mod(a1 - a0, 2 * np.pi)
+    p = np.mod(up_angle - a0, 2 * np.pi)
+    if p <= w:
+        face0, water, phi0 = a0, w, p
+    else:
+        face0, water, phi0 = a1, 2 * np.pi - w, np.mod(up_angle - a1, 2 * np.pi)
+    tiny = np.radians(GRAZING_DEG)
+    return face0, float(water), float(np.clip(phi0, tiny, water - tiny))
+
+
+def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None,
+                  higher_order=True):
     r"""Geometric optics of the whole layout plus each lit head's diffracted wave.
 
     Parameters
@@ -233,6 +372,12 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
         Output of :func:`harbor.geometry.visibility.layout_segments` (to reuse).
     visible : list of numpy.ndarray, optional
         Output of :func:`head_visibility` for the same (flattened) points (to reuse).
+    higher_order : bool, optional
+        Include the second-order terms (double diffraction between edges, edges
+        diffracting the reflected waves, reflections of the edges' shadow waves) that
+        make the field continuous where one structure cuts another's waves. A random sea
+        leaves them out per component (default True): there the cut-offs of the many
+        directions fall in different places and average out, at a fraction of the cost.
 
     Returns
     -------
@@ -251,17 +396,18 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
           + \sum_{\text{lit edges}} \chi_h\, e^{ik\,\mathbf d\cdot\mathbf h}\, D_h(\mathbf x)
 
     with :math:`\chi` the visibility indicators, :math:`\mathbf d_r` the mirror image of
-    the travel direction in a face and :math:`D_h` the diffracted part of Sommerfeld's
-    solution for the edge h (:func:`harbor.solver.kernels.sommerfeld.sommerfeld_terms`).
-    The edges are the free heads (half-plane along the end segment) and the bends of an
-    arm that turn it by at least :data:`BEND_DIFFRACTION_DEG` and cast a shadow boundary,
-    i.e. whose two segments lie on the same side of the ray through the bend (half-plane
-    along the more up-wave segment, whose face is lit).
-    A bend whose two faces are both struck casts no shadow; there only the
-    reflection-boundary part of each face's half-plane solution is added. Either way the
-    jumps of the geometric field across the bend's shadow and reflection boundaries are
-    removed exactly; a wedge solution would be exact there, so fields within a wavelength
-    of a sharp bend are approximate (the accuracy table in docs/ measures it).
+    the travel direction in a face and :math:`D_h` the diffracted wave of the edge h. A
+    free head diffracts as Sommerfeld's half-plane along its end segment
+    (:func:`harbor.solver.kernels.sommerfeld.sommerfeld_terms`). Every bend, of any
+    angle, diffracts as the wedge its two segments form on the side the waves strike
+    (water angle :math:`\pi \pm \tau` for a turn :math:`\tau`;
+    :func:`harbor.solver.kernels.wedge.wedge_diffracted`), so that the shadow boundary and
+    both faces' reflection boundaries that start at the bend are smoothed and the total
+    field is continuous across them. A diffracted wave reaches only water it can reach:
+    points in line of sight of the edge (no arm or land in between) and, for a bend,
+    inside the struck sector (never through the arm to its other side), so a closed basin
+    receives nothing. Edges not reached by the incident wave do not diffract (no
+    multiple diffraction), and reflected waves are not diffracted again.
 
     References
     ----------
@@ -270,7 +416,13 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
        236-253.
     .. [2] Keller, J. B. (1962). Geometrical theory of diffraction. *Journal of the
        Optical Society of America*, 52(2), 116-130.
+    .. [3] Kouyoumjian, R. G., & Pathak, P. H. (1974). A uniform geometrical theory of
+       diffraction for an edge in a perfectly conducting surface. *Proceedings of the
+       IEEE*, 62(11), 1448-1461.
     """
+    wet, _ = active_layout(layout)
+    if wet is not layout:
+        layout, segments, visible = wet, None, None
     d0 = np.array([np.cos(alpha), np.sin(alpha)])
     edge_on = edge_on_arms(layout, d0, wavelength)
     if edge_on:
@@ -297,79 +449,225 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
 
     # first-order reflection from the seaward face of every arm segment
     is_arm = np.array([o.startswith("arm:") for o in owner], bool)
+    scale = max(float(np.max(np.abs(segments))) if len(segments) else 1.0, 1.0)
+
+    def beam(face, X, Y):
+        """Points of (X, Y) that the face's reflected wave reaches, and its phase there."""
+        si, a, b, n, dr = face
+        t = b - a
+        length2 = float(np.dot(t, t))
+        front = (X - a[0]) * n[0] + (Y - a[1]) * n[1]
+        cand = np.nonzero(front > 0)[0]
+        if cand.size == 0:
+            return cand, np.zeros(0)
+        back = front[cand] / np.dot(dr, n)
+        qx = X[cand] - back * dr[0]
+        qy = Y[cand] - back * dr[1]
+        sa = ((qx - a[0]) * t[0] + (qy - a[1]) * t[1]) / length2
+        on = (sa >= -1e-9) & (sa <= 1 + 1e-9)
+        idx, qx, qy = cand[on], qx[on], qy[on]
+        if idx.size == 0:
+            return idx, np.zeros(0)
+        skip = np.zeros(len(segments), bool)
+        skip[si] = True
+        ok = ~ray_blocked(qx, qy, up, segments, skip=skip, open_ends=open_ends)
+        ok &= ~segment_blocked(X[idx], Y[idx], qx, qy, segments, skip=skip)
+        idx = idx[ok]
+        phase = np.dot(d, a) + (X[idx] - a[0]) * dr[0] + (Y[idx] - a[1]) * dr[1]
+        return idx, phase
+
+    faces = []
     for si in np.nonzero(is_arm)[0]:
         a, b = segments[si]
         t = b - a
-        length = np.hypot(*t)
-        n = np.array([-t[1], t[0]]) / length
+        n = np.array([-t[1], t[0]]) / np.hypot(*t)
         if np.dot(n, d) > 0:
             n = -n                          # the face the waves strike
         dn = float(np.dot(d, n))
         if dn > -1e-12:
             continue
-        dr = d - 2 * dn * n
-        front = (px - a[0]) * n[0] + (py - a[1]) * n[1]
-        cand = front > 0
-        if not np.any(cand):
-            continue
-        qx_t = front[cand] / np.dot(dr, n)
-        qx = px[cand] - qx_t * dr[0]
-        qy = py[cand] - qx_t * dr[1]
-        s = ((qx - a[0]) * t[0] + (qy - a[1]) * t[1]) / length**2
-        on = (s >= -1e-9) & (s <= 1 + 1e-9)
-        if not np.any(on):
-            continue
-        idx = np.nonzero(cand)[0][on]
-        qx, qy = qx[on], qy[on]
-        skip = np.zeros(len(segments), bool)
-        skip[si] = True
-        ok = ~ray_blocked(qx, qy, up, segments, skip=skip, open_ends=open_ends)
-        ok &= ~segment_blocked(px[idx], py[idx], qx, qy, segments, skip=skip)
-        idx = idx[ok]
-        phase = np.dot(d, a) + (px[idx] - a[0]) * dr[0] + (py[idx] - a[1]) * dr[1]
+        face = (si, a, b, n, d - 2 * dn * n)
+        faces.append(face)
+        idx, phase = beam(face, px, py)
         u[idx] += np.exp(1j * k * phase)
 
-    # diffraction by each lit head, and by each bend that casts a shadow boundary
-    n_lit = 0
-    left = np.array([-d[1], d[0]])
-    for ei, (tip, dirs) in enumerate(diffracting_edges(layout)):
-        if len(dirs) == 2:
-            # gentle bends: the straight-arm treatment is closer to the full-field
-            # solution than half-plane terms at the bend (docs/accuracy.md, sect. 3)
-            if np.dot(dirs[0], dirs[1]) < -np.cos(np.radians(BEND_DIFFRACTION_DEG)):
-                continue
-            an, bn = float(np.dot(dirs[0], left)), float(np.dot(dirs[1], left))
-            if an * bn > 0:
-                # a shadow boundary starts at the bend: half-plane along the more up-wave
-                # segment, whose face is the lit one
-                planes = [(dirs[0] if np.dot(dirs[0], d) < np.dot(dirs[1], d) else dirs[1], "both")]
+    def edge_wave(tip, dirs, dv, X, Y, parts):
+        """Diffracted wave of an edge for a plane wave travelling along dv (unit
+        amplitude at the tip) at points X, Y in its line of sight; zero outside the
+        struck sector of a bend."""
+        if len(dirs) == 1:
+            inward = dirs[0]
+            ey = np.array([-inward[1], inward[0]])
+            if np.dot(ey, dv) < 0:
+                ey = -ey
+            local = np.arctan2(np.dot(dv, ey), np.dot(dv, inward))
+            local = np.clip(local, np.radians(GRAZING_DEG), np.pi - np.radians(GRAZING_DEG))
+            xl, yl = _local(X, Y, tip, inward, ey)
+            _, _, (d1, d2) = sommerfeld_terms(xl, yl, k, local, split=True)
+            return d1 + d2 if parts == "all" else d1
+        face0, water, phi0 = bend_sector(dirs, float(np.arctan2(-dv[1], -dv[0])))
+        rx, ry = X - tip[0], Y - tip[1]
+        phi = np.mod(np.arctan2(ry, rx) - face0, 2 * np.pi)
+        inside = phi <= water + 1e-12
+        out = np.zeros(X.shape, complex)
+        out[inside] = wedge_diffracted(np.hypot(rx[inside], ry[inside]), phi[inside], phi0,
+                                       water / np.pi, k, parts=parts)
+        return out
+
+    def sector_wave(tip, face0, water, phi0, sign, X, Y, s_src):
+        """Shadow part of the wedge wave at ``tip`` (faces at ``face0`` and ``face0 +
+        sign * water``) for a cylindrical wave from ``s_src`` away, arriving from
+        ``phi0`` (unit amplitude at the tip)."""
+        phi = np.mod(sign * (np.arctan2(Y - tip[1], X - tip[0]) - face0), 2 * np.pi)
+        inside = phi <= water + 1e-12
+        out = np.zeros(X.shape, complex)
+        r = np.hypot(X[inside] - tip[0], Y[inside] - tip[1])
+        out[inside] = wedge_diffracted(r, phi[inside], phi0, water / np.pi, k,
+                                       parts="shadow", source=s_src)
+        return out
+
+    def double_terms(tip, dirs, src):
+        """(probe point, face0, water, phi0, sign) for each way the cylindrical wave of
+        the edge at ``src`` meets the edge at ``tip``: a wave that runs along a face
+        into it meets it once per face side it runs on (a head: both; a bend: its
+        convex side only)."""
+        v = (src - tip) / np.hypot(*(src - tip))
+        toward = float(np.arctan2(v[1], v[0]))
+        tiny = np.radians(GRAZING_DEG)
+        hair = 1e-6 * scale
+        graze = [f for f in dirs if abs(f[0] * v[1] - f[1] * v[0]) < 1e-9 and np.dot(f, v) > 0]
+        if not graze:
+            if len(dirs) == 1:
+                face0, water = float(np.arctan2(dirs[0][1], dirs[0][0])), 2 * np.pi
+                phi0 = np.mod(toward - face0, 2 * np.pi)
             else:
-                # the wave meets the bend from outside on both faces: only the reflection
-                # boundaries need smoothing, one half-plane per face
-                planes = [(dirs[0], "reflection"), (dirs[1], "reflection")]
-        else:
-            planes = [(dirs[0], "both")]
+                face0, water, phi0 = bend_sector(dirs, toward)
+            return [(tip + hair * v, face0, water, float(np.clip(phi0, tiny, water - tiny)),
+                     1.0)]
+        f = graze[0]
+        face0 = float(np.arctan2(f[1], f[0]))
+        left = np.array([-f[1], f[0]])
+        if len(dirs) == 1:
+            return [(tip + hair * (left + 1e-3 * f), face0, 2 * np.pi, tiny, 1.0),
+                    (tip + hair * (-left + 1e-3 * f), face0, 2 * np.pi, tiny, -1.0)]
+        other = dirs[1] if f is dirs[0] else dirs[0]
+        w = np.mod(float(np.arctan2(other[1], other[0])) - face0, 2 * np.pi)
+        # the convex side: counter-clockwise from f when the other segment is more than
+        # pi away counter-clockwise, else clockwise
+        if w > np.pi + 1e-9:
+            return [(tip + hair * (left + 1e-3 * f), face0, w, tiny, 1.0)]
+        if w < np.pi - 1e-9:
+            return [(tip + hair * (-left + 1e-3 * f), face0, 2 * np.pi - w, tiny, -1.0)]
+        return []
+
+    def on_face(tip, face):
+        _, a, b, _, _ = face
+        return min(np.hypot(*(tip - a)), np.hypot(*(tip - b))) <= 1e-9 * scale
+
+    # diffraction by each lit head (Sommerfeld's half-plane along its end segment) and by
+    # each lit bend (the wedge formed by its two segments), each only into the water it
+    # can reach: in line of sight and, for a bend, inside the sector the waves strike
+    n_lit = 0
+    edges = diffracting_edges(layout)
+    seen_of = {}
+
+    def seen(ei):
+        if ei not in seen_of:
+            tip = edges[ei][0]
+            seen_of[ei] = (visible[ei] if visible is not None
+                           else ~segment_blocked(px, py, tip[0], tip[1], segments))
+        return seen_of[ei]
+
+    lit = []
+    for ei, (tip, dirs) in enumerate(edges):
         if ray_blocked(np.array([tip[0]]), np.array([tip[1]]), up, segments,
                        open_ends=open_ends)[0]:
             continue
         if len(dirs) == 1:
             n_lit += 1
-        if visible is not None:
-            seen = visible[ei]
-        else:
-            seen = ~segment_blocked(px, py, tip[0], tip[1], segments)
-        if not np.any(seen):
+        lit.append(ei)
+        idx = np.nonzero(seen(ei))[0]
+        if idx.size:
+            u[idx] += np.exp(1j * k * np.dot(d, tip)) * edge_wave(tip, dirs, d, px[idx],
+                                                                   py[idx], "all")
+
+    if not higher_order:
+        return u.reshape(shape), n_lit
+
+    # double diffraction: a lit edge's diffracted wave, cut off by another edge in its
+    # line of sight, is diffracted there (shadow part; a head's wave running along its
+    # own arm into a bend is the grazing case)
+    ex_all = np.array([e[0] for e in edges]) if edges else np.zeros((0, 2))
+    for hi in lit:
+        tip_h, dirs_h = edges[hi]
+        if ex_all.size == 0:
+            break
+        view = ~segment_blocked(ex_all[:, 0], ex_all[:, 1], tip_h[0], tip_h[1], segments)
+        for oi in np.nonzero(view)[0]:
+            if oi == hi:
+                continue
+            tip_o, dirs_o = edges[oi]
+            if np.hypot(*(tip_o - tip_h)) <= 1e-9 * scale:
+                continue
+            s_src = float(np.hypot(*(tip_o - tip_h)))
+            idx = np.nonzero(seen(oi))[0]
+            if idx.size == 0:
+                continue
+            for probe, face0, water, phi0, sign in double_terms(tip_o, dirs_o, tip_h):
+                # the primary wave of edge h where it meets edge o, a hair off the arm on
+                # the side it runs along
+                amp = np.exp(1j * k * np.dot(d, tip_h)) * edge_wave(
+                    tip_h, dirs_h, d, probe[None, 0], probe[None, 1], "all")[0]
+                if abs(amp) < 1e-9:
+                    continue
+                u[idx] += amp * sector_wave(tip_o, face0, water, phi0, sign, px[idx],
+                                            py[idx], s_src)
+
+    # second-order terms that keep the field continuous where an edge cuts a reflected
+    # wave: (a) an edge in a face's reflected beam diffracts that wave (shadow part);
+    # (b) a lit edge's shadow, which cuts the incident wave on its way to a face, is
+    # mirrored in the face (the face's image of the edge's shadow-smoothing wave)
+    for face in faces:
+        si, a, b, n, dr = face
+        for ei, (tip, dirs) in enumerate(edges):
+            if on_face(tip, face):
+                continue
+            hit, ph = beam(face, tip[None, 0].copy(), tip[None, 1].copy())
+            if hit.size == 0:
+                continue
+            idx = np.nonzero(seen(ei))[0]
+            if idx.size:
+                u[idx] += np.exp(1j * k * ph[0]) * edge_wave(tip, dirs, dr, px[idx],
+                                                             py[idx], "shadow")
+        front = (px - a[0]) * n[0] + (py - a[1]) * n[1]
+        cand = np.nonzero(front > 0)[0]
+        if cand.size == 0:
             continue
-        for inward, part in planes:
-            ey = np.array([-inward[1], inward[0]])
-            if np.dot(ey, d) < 0:
-                ey = -ey
-            local = np.arctan2(np.dot(d, ey), np.dot(d, inward))
-            local = np.clip(local, np.radians(GRAZING_DEG), np.pi - np.radians(GRAZING_DEG))
-            xl, yl = _local(px[seen], py[seen], tip, inward, ey)
-            _, _, (d1, d2) = sommerfeld_terms(xl, yl, k, local, split=True)
-            diff = d1 + d2 if part == "both" else d2
-            u[seen] += np.exp(1j * k * np.dot(d, tip)) * diff
+        t = b - a
+        length2 = float(np.dot(t, t))
+        skip = np.zeros(len(segments), bool)
+        skip[si] = True
+        for ei in lit:
+            tip, dirs = edges[ei]
+            fh = float(np.dot(tip - a, n))
+            if fh <= 1e-9 * scale or on_face(tip, face):
+                continue
+            mx = px[cand] - 2 * front[cand] * n[0]
+            my = py[cand] - 2 * front[cand] * n[1]
+            w = fh / (fh + front[cand])
+            qx = tip[0] + w * (mx - tip[0])
+            qy = tip[1] + w * (my - tip[1])
+            sa = ((qx - a[0]) * t[0] + (qy - a[1]) * t[1]) / length2
+            on = (sa >= -1e-9) & (sa <= 1 + 1e-9)
+            if not np.any(on):
+                continue
+            idx, mx, my, qx, qy = cand[on], mx[on], my[on], qx[on], qy[on]
+            ok = ~segment_blocked(qx, qy, tip[0], tip[1], segments, skip=skip)
+            ok &= ~segment_blocked(px[idx], py[idx], qx, qy, segments, skip=skip)
+            if not np.any(ok):
+                continue
+            u[idx[ok]] += np.exp(1j * k * np.dot(d, tip)) * edge_wave(
+                tip, dirs, d, mx[ok], my[ok], "shadow")
     return u.reshape(shape), n_lit
 
 
@@ -397,6 +695,7 @@ def layout_field(layout, px, py, wavelength, alpha, method="auto"):
     info : FieldInfo
     """
     px, py = np.broadcast_arrays(np.asarray(px, float), np.asarray(py, float))
+    layout, _ = active_layout(layout)
     if method != "general":
         ent = classic_entrance(layout, wavelength)
         if ent is not None:
@@ -408,8 +707,17 @@ def layout_field(layout, px, py, wavelength, alpha, method="auto"):
                 u = np.empty(px.shape, complex)
                 u[inside], used = got
                 if np.any(~inside):
-                    u[~inside], _ = general_field(layout, px[~inside], py[~inside], wavelength,
-                                                  alpha, segments=segments)
+                    ox, oy = px[~inside], py[~inside]
+                    uo, _ = general_field(layout, ox, oy, wavelength, alpha, segments=segments)
+                    # a smooth hand-over to the gap solution near the entrance, seaward:
+                    # no step on the entrance line
+                    w = entrance_blend(layout, ent, ox, oy, wavelength, segments)
+                    zone = w > 0
+                    if np.any(zone):
+                        ug, _ = gap_field(ent, ox[zone], oy[zone], wavelength, alpha,
+                                          method=used)
+                        uo[zone] = w[zone] * ug + (1.0 - w[zone]) * uo[zone]
+                    u[~inside] = uo
                 name = METHOD_GAP_EXACT if used == "exact" else METHOD_GAP_SUPERPOSITION
                 return u, FieldInfo(method=name, lit_heads=2)
     u, n_lit = general_field(layout, px, py, wavelength, alpha)
@@ -429,9 +737,27 @@ def layout_warnings(layout, wavelength, point_xy=()):
 
     Returns
     -------
-    list of str
+    list of harbor.cautions.Notice
     """
     out = []
+    for j in getattr(layout, "joins", ()):
+        what = "its start" if j.end == "start" else "its end"
+        if j.joined:
+            out.append(Notice(
+                "ends-joined", f"arm '{j.arm}': {what} was {100 * j.distance:.0f} cm from "
+                f"{j.target} and has been joined to it (ends within "
+                f"{100 * JOIN_TOLERANCE:.0f} cm are joined)", level="note"))
+        else:
+            out.append(Notice(
+                "near-miss", f"arm '{j.arm}': {what} is {j.distance:.2f} m from {j.target} "
+                f"but not joined (ends are joined within {100 * JOIN_TOLERANCE:.0f} cm): "
+                f"did you mean to join them? As drawn, the {j.distance:.2f} m opening is "
+                f"solved as an entrance"))
+    layout, dry = active_layout(layout)
+    for name in dry:
+        out.append(Notice(
+            "arm-on-land", f"arm '{name}' lies wholly on land (buried in it or along its "
+            f"edge): it does nothing to the waves and is left out", level="note"))
     ent = nearest_heads(layout)
     if ent is not None and classic_entrance(layout, wavelength) is None:
         ratio = ent.width / wavelength
@@ -439,17 +765,18 @@ def layout_warnings(layout, wavelength, point_xy=()):
             names = (layout.arms[ent.arms[0]].name, layout.arms[ent.arms[1]].name)
             why = (f"end segments {ent.misalignment_deg:.0f} deg from collinear"
                    if not ent.collinear else "the arms are not rooted or long enough")
-            out.append(
-                f"entrance between '{names[0]}' and '{names[1]}' is {ent.width:.0f} m wide "
+            out.append(Notice(
+                "entrance-not-classic", f"entrance between '{names[0]}' and '{names[1]}' is {ent.width:.0f} m wide "
                 f"({ratio:.2f} L) but not a classic entrance ({why}): the general method "
                 f"ignores the interaction of the two heads, K' in the lee may be off by "
-                f"0.05 or more")
+                f"0.05 or more"))
     for name, x, y in point_xy:
         for arm in layout.arms:
             for tip, _ in arm.heads():
                 dist = float(np.hypot(x - tip[0], y - tip[1]))
                 if dist < 0.5 * wavelength:
-                    out.append(f"point '{name}' is {dist:.0f} m from the head of '{arm.name}', "
+                    out.append(Notice("near-head", f"point '{name}' is {dist:.0f} m from the head of '{arm.name}', "
                                f"within half a wavelength ({0.5 * wavelength:.0f} m): "
-                               f"near-field values are sensitive to the head's real shape")
+                               f"near-field values are sensitive to the head's real shape",
+                                      point=name))
     return out

@@ -17,8 +17,11 @@ from harbor.solver.layout import (
     METHOD_GAP_EXACT,
     METHOD_GAP_SUPERPOSITION,
     METHOD_GENERAL,
+    active_layout,
     classic_entrance,
+    entrance_blend,
     entrance_frames,
+    gap_field,
     general_field,
     head_visibility,
 )
@@ -107,10 +110,12 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
     angle = np.asarray(components.angle)
     e0 = np.zeros(xf.size)
     e2 = np.zeros(xf.size)
+    layout, _ = active_layout(layout)      # arms wholly on land do nothing
     segments = layout_segments(layout)
     visible_all = head_visibility(layout, xf, yf, segments)
     bands = np.unique(freq)
     vis_out = {}
+    blend = {}
     methods: dict = {}
     reaching = 0.0
     for bi, f in enumerate(bands):
@@ -121,6 +126,7 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
         ent = classic_entrance(layout, L) if method != "general" else None
         batched = np.zeros(sel.size, bool)
         inside = None
+        use_of = {}
         if ent is not None:
             inside = basin_mask(layout, ent, xf, yf, segments)
             bx, by = xf[inside], yf[inside]
@@ -141,6 +147,7 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
                 if not np.any(pick):
                     continue
                 batched |= pick
+                use_of.update({int(j): use for j in np.nonzero(pick)[0]})
                 name = METHOD_GAP_EXACT if use == "exact" else METHOD_GAP_SUPERPOSITION
                 methods[name] = methods.get(name, 0.0) + float(w[pick].sum())
                 for sgn in (+1, -1):
@@ -176,13 +183,27 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
                     vis_out.clear()
                     vis_out[key] = [v[outside] for v in visible_all]
                 u, _ = general_field(layout, xf[outside], yf[outside], L, k_alpha[j],
-                                     segments=segments, visible=vis_out[key])
+                                     segments=segments, visible=vis_out[key],
+                                     higher_order=False)
+                if (key, L) not in blend:
+                    blend.clear()
+                    blend[(key, L)] = entrance_blend(layout, ent, xf[outside], yf[outside],
+                                                     L, segments)
+                wb = blend[(key, L)]
+                zone = wb > 0
+                if np.any(zone):
+                    # the same hand-over to the gap solution as a regular sea (no step on
+                    # the entrance line)
+                    got = gap_field(ent, xf[outside][zone], yf[outside][zone], L, k_alpha[j],
+                                    method=use_of[j])
+                    if got is not None:
+                        u[zone] = wb[zone] * got[0] + (1.0 - wb[zone]) * u[zone]
                 p = u.real**2 + u.imag**2
                 e0[outside] += w[j] * p
                 e2[outside] += w[j] * f * f * p
                 continue
             u, n_lit = general_field(layout, xf, yf, L, k_alpha[j], segments=segments,
-                                     visible=visible_all)
+                                     visible=visible_all, higher_order=False)
             p = u.real**2 + u.imag**2
             e0 += w[j] * p
             e2 += w[j] * f * f * p

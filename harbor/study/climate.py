@@ -13,20 +13,20 @@ K' scales every row that shares it.
 
 from __future__ import annotations
 
-import concurrent.futures as _cf
 import csv
 import dataclasses
 import io
 import math
-import os
 from pathlib import Path
-from typing import NamedTuple
 
 import numpy as np
 import pandas as pd
+import xarray as xr
 
 from harbor.cautions import CAUTION_SHORT
 from harbor.errors import InputError
+from harbor.study._files import MAX_TABLE_BYTES, read_text
+from harbor.study._limits import range_problem
 
 #: Required columns of a climate table; ``spreading`` is optional.
 CLIMATE_COLUMNS = ("height", "period", "from", "percent")
@@ -40,28 +40,6 @@ PERCENT_TOLERANCE = 1.0
 #: Below this many distinct cases they are solved one after the other (a pool of
 #: threads is not worth starting for two or three).
 PARALLEL_FROM = 4
-
-CLIMATE_EXAMPLE = """example:
-  harbor climate scenarios/demo.toml --table scenarios/demo-climate.csv --out screening
-  harbor climate scenarios/demo.toml --table scenarios/demo-climate.csv \\
-      --arm "west arm" --move 30 --out screening-60m
-
-The table is CSV with a header row: height,period,from,percent[,spreading]
-(H1/3 in m, T1/3 in s, direction the waves come from in degrees true, percentage of
-time; s_max, default 10). Each row is a directional random sea. Writes downtime.csv
-(point,limit,total and one column per 30-degree sector, by its centre 000 ... 330),
-climate-rows.csv (every row at every point) and downtime.png. With --arm and --move
-the head of that arm is first moved as in `harbor sweep`.
-"""
-
-
-class ClimateResult(NamedTuple):
-    """What :func:`climate_downtime` returns (unpacks as a tuple)."""
-
-    downtime: pd.DataFrame
-    rows: pd.DataFrame
-    occurrence: pd.Series
-    warnings: list
 
 
 # --------------------------------------------------------------------------- reading
@@ -121,6 +99,9 @@ def _cell(raw, file, where, column, *, positive=False, lo=None, hi=None):
     if lo is not None and not (lo <= v <= hi):
         raise InputError(f"must be between {lo:g} and {hi:g} degrees, got {v:g}", file=file,
                          where=where, key=column)
+    problem = range_problem(column, v, positive)
+    if problem:
+        raise InputError(problem, file=file, where=where, key=column)
     return v
 
 
@@ -166,7 +147,101 @@ def _validate(header, records, file, lines):
     df = pd.DataFrame(out, columns=["row", "line", "height", "period", "from", "percent",
                                     "spreading"]).set_index("row")
     df.attrs["file"] = file
+    _check_total(df, file)
     return df
+
+
+def _duplicates(df):
+    """Pairs (first row, repeating row) of rows with the same sea state."""
+    key = df[["height", "period", "from", "spreading"]].copy()
+    key["from"] = np.mod(key["from"], 360.0)
+    rep = key.duplicated(keep="first")
+    if not rep.any():
+        return []
+    first = {}
+    for row, k in zip(key.index, map(tuple, key.to_numpy())):
+        first.setdefault(k, row)
+    return [(first[tuple(key.loc[r])], r) for r in key.index[rep]]
+
+
+def _check_total(df, file):
+    # More than 100 % of the time is not a climate: the downtime would exceed 100 %.
+    total = float(df["percent"].sum())
+    if total > 100.0 + PERCENT_TOLERANCE:
+        dup = _duplicates(df)
+        hint = (f"; row {dup[0][1]} repeats row {dup[0][0]} (same height, period, from "
+                f"and spreading){' and more' if len(dup) > 1 else ''}: merge or remove "
+                "repeated rows") if dup else ""
+        raise InputError(f"the percentages add up to {total:.2f}, more than 100 (within "
+                         f"{PERCENT_TOLERANCE:g}){hint}", file=file, key="percent")
+
+
+#: Most distinct (period, direction, spreading) cases ``harbor climate`` solves unless
+#: asked for more (``--max-cases``): at about :data:`SECONDS_PER_CASE` each, 2000 cases take
+#: some 15 minutes.
+MAX_CLIMATE_CASES = 2000
+#: Rough cost of one distinct climate case at a few points (s; measured on the demo
+#: climate on two shared cores: 31-34 cases in 10-14 s).
+SECONDS_PER_CASE = 0.4
+
+
+def case_count(table) -> int:
+    """Number of distinct (period, direction, spreading) cases of a climate table: each is
+    solved once.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`read_climate` or :func:`climate_table`.
+
+    Returns
+    -------
+    int
+    """
+    keys = pd.DataFrame({"period": table["period"].to_numpy(float),
+                         "from": np.mod(table["from"].to_numpy(float), 360.0),
+                         "spreading": table["spreading"].to_numpy(float)})
+    return int((~keys.duplicated()).sum())
+
+
+def check_case_count(table, limit=MAX_CLIMATE_CASES) -> str:
+    """The line announcing the size of a climate run; refuses one beyond ``limit``.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`read_climate`.
+    limit : int, optional
+        Most distinct cases accepted (None or absent: :data:`MAX_CLIMATE_CASES`).
+
+    Returns
+    -------
+    str
+        ``"N climate rows, M distinct (period, direction, spreading) cases: about ..."``
+        with the estimate M × :data:`SECONDS_PER_CASE` (one thread).
+
+    Raises
+    ------
+    InputError
+        When M > ``limit`` (key ``--max-cases``), naming M and the estimate.
+    """
+    if limit is None:
+        limit = MAX_CLIMATE_CASES
+    if isinstance(limit, bool) or not isinstance(limit, int) or limit < 1:
+        raise InputError(f"must be a whole number of at least 1, got {limit!r}",
+                         key="--max-cases")
+    n = case_count(table)
+    est = n * SECONDS_PER_CASE
+    when = (f"{est:.0f} s" if est < 120 else f"{est / 60:.0f} min" if est < 7200
+            else f"{est / 3600:.1f} h")
+    line = (f"{len(table)} climate rows, {n} distinct (period, direction, spreading) "
+            f"cases: about {when} on one core (rough estimate)")
+    if n > limit:
+        raise InputError(f"the table has {n:,} distinct (period, direction, spreading) "
+                         f"cases, more than the {limit:,} solved without asking (about "
+                         f"{when}); coarsen the table's bins or give --max-cases {n}",
+                         file=table.attrs.get("file"), key="--max-cases")
+    return line
 
 
 def read_climate(path):
@@ -201,18 +276,8 @@ def read_climate(path):
     .. [1] Shafranovich, Y. (2005). Common Format and MIME Type for Comma-Separated
        Values (CSV) Files. IETF RFC 4180.
     """
-    p = Path(path)
     file = str(path)
-    if not p.exists():
-        raise InputError("file not found", file=file)
-    if p.is_dir():
-        raise InputError("is a directory, not a climate table", file=file)
-    try:
-        text = p.read_bytes().decode("utf-8-sig")
-    except UnicodeDecodeError:
-        raise InputError("not UTF-8 text", file=file) from None
-    except OSError as e:
-        raise InputError(f"cannot read the file ({e.strerror})", file=file) from None
+    text = read_text(path, "climate table", MAX_TABLE_BYTES)
     header, records, lines = None, [], []
     try:
         for line_no, rec in _numbered_rows(text):
@@ -282,6 +347,32 @@ def percent_warning(table):
     return None
 
 
+def duplicate_warning(table):
+    """A warning naming rows that repeat an earlier row's sea state.
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        From :func:`read_climate` or :func:`climate_table`.
+
+    Returns
+    -------
+    str or None
+        The warning (rows with the same height, period, direction and spreading as an
+        earlier row: their percentages count again, as given), else None. A table whose
+        percentages then exceed 100 is refused by the reader.
+    """
+    dup = _duplicates(table)
+    if not dup:
+        return None
+    file = table.attrs.get("file")
+    pre = f"{file}: " if file else ""
+    listed = ", ".join(f"row {b} repeats row {a}" for a, b in dup[:5])
+    more = f" and {len(dup) - 5} more" if len(dup) > 5 else ""
+    return (f"{pre}{listed}{more} (same height, period, from and spreading); their "
+            "percentages are added as given")
+
+
 # --------------------------------------------------------------------------- solving
 
 def _solve_case(scenario, method, case, name):
@@ -294,8 +385,10 @@ def _solve_case(scenario, method, case, name):
               spreading=spreading)
     ds = assemble.solve(dataclasses.replace(scenario, seas=(sea,)), grid=False,
                         method=method)
+    # this case's own breaking and reaching notes are replaced by the climate's summary
+    own = ("breaking", "not-reaching")
     return (ds.point_kd.values[0].copy(), float(ds.sea_reaching.values[0]),
-            [w for w in ds.attrs["warnings"].split("\n") if w and name not in w])
+            [n.text for n in assemble.notices(ds) if n.code not in own and name not in n.text])
 
 
 def _threads_safe() -> bool:
@@ -305,45 +398,18 @@ def _threads_safe() -> bool:
     return True
 
 
-def _run_cases(scenario, cases, method, workers, progress):
-    # Threads, not processes. Measured on the demo climate (31-34 cases, 2 cores shared
-    # with other jobs, so the spread is wide): one after the other 10-14 s, two threads
-    # 7-13 s, two forked processes 14-18 s, two fork-server processes 17-18 s (each must
-    # import harbor).
-    # Threads also need no pickling, no `if __name__ == "__main__"` guard in the user's
-    # script, and are safe with the kernels' OpenMP runtime, which forking is not.
-    n = len(cases)
-    names = [f"climate case {i + 1}" for i in range(n)]
-    results = [None] * n
-    if workers is None:
-        workers = os.cpu_count() or 1
-    workers = max(1, min(int(workers), n))
-    # the first case runs alone: it warms the caches and starts the threading layer
-    results[0] = _solve_case(scenario, method, cases[0], names[0])
-    if progress is not None:
-        progress("climate cases", 1, n)
-    if workers == 1 or n < PARALLEL_FROM or not _threads_safe():
-        for i in range(1, n):
-            results[i] = _solve_case(scenario, method, cases[i], names[i])
-            if progress is not None:
-                progress("climate cases", i + 1, n)
-        return results
-    with _cf.ThreadPoolExecutor(max_workers=workers) as pool:
-        futs = {pool.submit(_solve_case, scenario, method, cases[i], names[i]): i
-                for i in range(1, n)}
-        try:
-            for done, f in enumerate(_cf.as_completed(futs), 2):
-                results[futs[f]] = f.result()
-                if progress is not None:
-                    progress("climate cases", done, n)
-        except BaseException:
-            for f in futs:
-                f.cancel()
-            raise
-    return results
+def _run_cases(scenario, cases, method, workers, progress, executor=None):
+    # Through the one executor of every study (harbor.study.executor): by default
+    # threads in this process (measured on the demo climate, 2 shared cores: serial
+    # 10-14 s, two threads 7-13 s, two processes 14-18 s), or the executor given.
+    from harbor.study.alternatives import solve_cases
+
+    return solve_cases(scenario, cases, method=method, executor=executor, workers=workers,
+                       progress=progress)
 
 
-def climate_downtime(scenario, table, method="auto", workers=None, progress=None):
+def climate_downtime(scenario, table, method="auto", workers=None, progress=None, arm=None,
+                     move=None, executor=None):
     """Downtime of every point with a limit under a wave climate.
 
     Parameters
@@ -360,17 +426,30 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
         Threads to spread the distinct cases over (default: the machine's cores; 1
         solves them one after the other).
     progress : callable, optional
-        ``progress(name, done, total)`` after each distinct case.
+        ``progress(name, done, total)`` after each task (one task solves every
+        direction of one (period, spreading)).
+    arm, move : str and float, optional
+        First move the free head of ``arm`` by ``move`` metres along its end segment
+        (as :func:`harbor.study.sweep.move_head`; positive lengthens).
+    executor : harbor.study.executor.Executor, optional
+        Where the solves run (serial, threads, a Dask cluster); default threads as
+        ``workers`` says.
 
     Returns
     -------
-    ClimateResult
-        ``downtime``: DataFrame indexed by point, columns ``limit`` (m), ``total`` (%)
-        and one column per sector centre 0, 30, ..., 330 (%, of all time: the sector
-        columns add up to ``total``). ``rows``: one row per climate row and point,
-        columns ``row, height, period, from, spreading, percent, sector, point, kd,
-        point_height, limit, exceeds, reaching``. ``occurrence``: % of time from each
-        sector. ``warnings``: list of str.
+    xarray.Dataset
+        Dimensions ``point`` (the points with a limit), ``sector`` (centres 0, 30, ...,
+        330 degrees true) and ``row`` (the climate table's rows, by their number).
+        ``limit`` (point, m), ``total`` (point, % of time above the limit),
+        ``downtime`` (point, sector: % of all time, adding up to ``total``),
+        ``occurrence`` (sector, % of time); per row ``height``, ``period``, ``from``,
+        ``spreading``, ``percent``, ``row_sector``, ``reaching``; per row and point
+        ``kd``, ``point_height`` (m), ``exceeds``. Attributes: ``warnings`` (list of
+        str), ``cases``, ``table_rows``, ``file``, ``title``, ``scenario``, ``arm``,
+        ``move`` (m), ``entrance_width`` (m:
+        :func:`harbor.geometry.entrance.entrance_width`, the narrowest water passage
+        between the structures; None when the layout has none), ``cautions``. The same
+        labelled shape as :func:`harbor.study.sweep.sweep`.
 
     Raises
     ------
@@ -401,6 +480,21 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
     .. [3] Mitsuyasu, H., et al. (1975). Observations of the directional spectrum of
        ocean waves using a cloverleaf buoy. *J. Phys. Oceanogr.*, 5(4), 750-760.
     """
+    if (arm is None) != (move is None):
+        raise InputError("arm and move go together", key="arm" if arm is None else "move")
+    width = None
+    if arm is not None:
+        from harbor.study.sweep import MoveRejected, move_head
+
+        try:
+            scenario, width = move_head(scenario, arm, move)
+        except MoveRejected as e:
+            raise InputError(f"cannot move the head of '{arm}' by {move:g} m: {e}",
+                             file=scenario.path or None, key="move") from None
+    else:
+        from harbor.geometry.entrance import entrance_width
+
+        width = entrance_width(scenario.layout)   # the one definition, as check and sweep
     tab = climate_table(table)
     limited = tuple(p for p in scenario.points if p.limit is not None)
     if not limited:
@@ -416,7 +510,7 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
     from_norm = np.mod(tab["from"].to_numpy(float), 360.0)
     keys = list(zip(tab["period"].to_numpy(float), from_norm, tab["spreading"].to_numpy(float)))
     cases = list(dict.fromkeys(keys))
-    solved = _run_cases(sc, cases, method, workers, progress)
+    solved = _run_cases(sc, cases, method, workers, progress, executor)
     where = {c: i for i, c in enumerate(cases)}
     for _, _, ws in solved:
         for x in ws:
@@ -449,211 +543,60 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
                         "from directions that mostly do not reach the harbour from open water")
 
     names = [p.name for p in limited]
-    down = pd.DataFrame(index=pd.Index(names, name="point"))
-    down["limit"] = lim
-    down["total"] = (pct[:, None] * exceeds).sum(axis=0)
-    for c in SECTORS:
-        m = sect == c
-        down[c] = (pct[m, None] * exceeds[m]).sum(axis=0)
-    occurrence = pd.Series({c: float(pct[sect == c].sum()) for c in SECTORS},
-                           name="percent")
-    occurrence.index.name = "sector"
-
-    nr, npnt = heights.shape
-    rows = pd.DataFrame({
-        "row": np.repeat(tab.index.to_numpy(), npnt),
-        "height": np.repeat(H, npnt),
-        "period": np.repeat(tab["period"].to_numpy(float), npnt),
-        "from": np.repeat(tab["from"].to_numpy(float), npnt),
-        "spreading": np.repeat(tab["spreading"].to_numpy(float), npnt),
-        "percent": np.repeat(pct, npnt),
-        "sector": np.repeat(sect, npnt),
-        "point": np.tile(names, nr),
-        "kd": kd.ravel(),
-        "point_height": heights.ravel(),
-        "limit": np.tile(lim, nr),
-        "exceeds": exceeds.ravel(),
-        "reaching": np.repeat(reach, npnt),
-    })
-    for df in (down, rows):
-        df.attrs.update(cases=len(cases), table_rows=nr, file=tab.attrs.get("file"),
-                        cautions=CAUTION_SHORT)
-    return ClimateResult(down, rows, occurrence, warnings)
+    secs = np.array(SECTORS)
+    in_sector = sect[:, None] == secs[None, :]                 # (rows, sectors)
+    down = np.einsum("r,rs,rp->ps", pct, in_sector, exceeds.astype(float))
+    nr = heights.shape[0]
+    result = xr.Dataset(
+        {
+            "limit": ("point", lim, {"long_name": "allowable wave height", "units": "m"}),
+            "total": ("point", (pct[:, None] * exceeds).sum(axis=0),
+                      {"long_name": "downtime: time the height exceeds the limit",
+                       "units": "%"}),
+            "downtime": (("point", "sector"), down,
+                         {"long_name": "downtime with waves from the sector (of all time)",
+                          "units": "%"}),
+            "occurrence": ("sector", (pct[:, None] * in_sector).sum(axis=0),
+                           {"long_name": "time the waves come from the sector",
+                            "units": "%"}),
+            "height": ("row", H, {"long_name": "H1/3 of the climate row", "units": "m"}),
+            "period": ("row", tab["period"].to_numpy(float),
+                       {"long_name": "T1/3 of the climate row", "units": "s"}),
+            "from": ("row", tab["from"].to_numpy(float),
+                     {"long_name": "direction the waves come from", "units": "degree"}),
+            "spreading": ("row", tab["spreading"].to_numpy(float),
+                          {"long_name": "Mitsuyasu s_max", "units": "1"}),
+            "percent": ("row", pct, {"long_name": "time of the row", "units": "%"}),
+            "row_sector": ("row", sect, {"long_name": "sector centre of the row",
+                                         "units": "degree"}),
+            "reaching": ("row", reach, {"long_name": "share of the energy reaching the "
+                                                     "layout from open water", "units": "1"}),
+            "kd": (("row", "point"), kd, {"long_name": "effective K'", "units": "1"}),
+            "point_height": (("row", "point"), heights,
+                             {"long_name": "H1/3 at the point", "units": "m"}),
+            "exceeds": (("row", "point"), exceeds),
+        },
+        coords={"point": names, "sector": secs, "row": tab.index.to_numpy()},
+        attrs=dict(cases=len(cases), table_rows=nr, file=tab.attrs.get("file"),
+                   cautions=CAUTION_SHORT, title=scenario.title,
+                   scenario=str(scenario.path or ""), arm=arm,
+                   move=None if move is None else float(move), entrance_width=width,
+                   warnings=list(warnings)),
+    )
+    result["sector"].attrs.update(long_name="sector centre (direction the waves come "
+                                            "from, degrees true)", units="degree")
+    return result
 
 
 # --------------------------------------------------------------------------- outputs
 
-def _order(occurrence):
-    """Sectors with any occurrence, in bearing order starting after the widest empty
-    stretch (so that a NW-N-NE climate reads 300, 330, 000, 030)."""
-    present = [c for c in SECTORS if occurrence.get(c, 0.0) > 0]
-    if len(present) <= 1:
-        return present
-    gaps = [((present[(i + 1) % len(present)] - present[i]) % 360 or 360, i)
-            for i in range(len(present))]
-    _, i = max(gaps)
-    return present[i + 1:] + present[:i + 1]
 
 
-def downtime_text(result) -> str:
-    """The terminal table of ``harbor climate``.
 
-    Parameters
-    ----------
-    result : ClimateResult
-        From :func:`climate_downtime`.
+def __getattr__(name):
+    # the tables, CSV text and charts moved to harbor.outputs.studies; old imports work
+    from harbor.outputs import studies
 
-    Returns
-    -------
-    str
-        Per point: limit (m), total downtime (%) and downtime per sector (%), for the
-        sectors the climate has any time in; last line the time from each sector (%).
-    """
-    down, occ = result.downtime, result.occurrence
-    order = _order(occ)
-    head = f"{'point':<18}{'limit':>7}{'total':>8}  |" + "".join(f"{sector_label(c):>9}"
-                                                              for c in order)
-    unit = f"{'':<18}{'(m)':>7}{'(%)':>8}  |" + "".join(f"{'(%)':>9}" for _ in order)
-    lines = ["downtime: % of time the wave height at the point exceeds its limit, by the "
-             "sector the waves come from (degrees true)", head, unit, "-" * len(head)]
-    for name, r in down.iterrows():
-        lines.append(f"{str(name)[:18]:<18}{r['limit']:>7.2f}{r['total']:>8.2f}  |"
-                     + "".join(f"{r[c]:>9.2f}" for c in order))
-    lines.append("-" * len(head))
-    lines.append(f"{'time from sector':<18}{'':>7}{occ.sum():>8.2f}  |"
-                 + "".join(f"{occ[c]:>9.2f}" for c in order))
-    return "\n".join(lines)
-
-
-def downtime_csv_text(result) -> str:
-    """CSV of the downtime table.
-
-    Parameters
-    ----------
-    result : ClimateResult
-        From :func:`climate_downtime`.
-
-    Returns
-    -------
-    str
-        Columns ``point,limit,total,000,030,...,330``: limit in m, the others in % of
-        all time (sector columns by their centre, degrees true); no comment lines.
-    """
-    d = result.downtime.reset_index()
-    d.columns = ["point", "limit", "total"] + [f"{c:03d}" for c in SECTORS]
-    buf = io.StringIO()
-    d.to_csv(buf, index=False, lineterminator="\n", float_format="%.4g")
-    return buf.getvalue()
-
-
-def rows_csv_text(result) -> str:
-    """CSV of every climate row at every point.
-
-    Parameters
-    ----------
-    result : ClimateResult
-        From :func:`climate_downtime`.
-
-    Returns
-    -------
-    str
-        The columns of ``result.rows`` (heights in m, period in s, directions in
-        degrees true, percent in %); ``exceeds`` as ``true``/``false``.
-    """
-    r = result.rows.copy()
-    r["exceeds"] = np.where(r["exceeds"], "true", "false")
-    buf = io.StringIO()
-    r.to_csv(buf, index=False, lineterminator="\n", float_format="%.6g")
-    return buf.getvalue()
-
-
-def plot_downtime(result, path, title=None, dpi=150):
-    """Write a PNG bar chart of downtime by direction sector, one bar per point.
-
-    Parameters
-    ----------
-    result : ClimateResult
-        From :func:`climate_downtime`.
-    path : str or os.PathLike
-        Output PNG; written atomically.
-    title : str, optional
-        Title line.
-    dpi : int
-
-    Returns
-    -------
-    str or os.PathLike
-        ``path``.
-
-    Notes
-    -----
-    Grey bars: the percentage of time the waves come from the sector; coloured bars
-    inside them: the percentage of time each point's height exceeds its limit with
-    waves from that sector. The legend gives each point's limit and total downtime.
-    """
-    from harbor.outputs._atomic import atomic_path
-    from harbor.outputs.maps import new_figure, wrap_to
-
-    down, occ = result.downtime, result.occurrence
-    order = _order(occ) or list(SECTORS)
-    colours = ["#0072b2", "#d55e00", "#009e73", "#cc79a7", "#e69f00", "#56b4e9",
-               "#000000", "#f0e442"]
-    fig = new_figure((10.0, 6.0))
-    ax = fig.add_axes((0.07, 0.22, 0.58, 0.68))
-    x = np.arange(len(order))
-    ax.bar(x, [occ[c] for c in order], width=0.9, color="#e3e3e3", edgecolor="#bbbbbb",
-           label="time from the sector")
-    n = max(len(down), 1)
-    w = 0.8 / n
-    for k, (name, r) in enumerate(down.iterrows()):
-        ax.bar(x - 0.4 + w * (k + 0.5), [r[c] for c in order], width=w * 0.92,
-               color=colours[k % len(colours)],
-               label=f"{name} (limit {r['limit']:.2f} m): {r['total']:.1f} % of time")
-    ax.set_xticks(x, [f"{c:03d}\n{sector_label(c)}" for c in order], fontsize=8)
-    ax.set_xlabel("direction the waves come from (sector centre and range, degrees true)")
-    ax.set_ylabel("% of time")
-    ax.grid(True, axis="y", color="#dddddd", linewidth=0.6)
-    ax.set_axisbelow(True)
-    ax.legend(loc="upper left", bbox_to_anchor=(1.02, 1.0), fontsize=7.5, frameon=False,
-              title="downtime (height > limit)", title_fontsize=8)
-    ax.set_title(title or "Berth downtime by wave direction", fontsize=11, loc="left")
-    src = result.downtime.attrs.get("file")
-    foot = [f"climate: {Path(src).name if src else 'table'}, "
-            f"{result.downtime.attrs.get('table_rows', '?')} rows, "
-            f"{occ.sum():.1f} % of time; {result.downtime.attrs.get('cases', '?')} distinct "
-            "(period, direction, spreading) cases solved"]
-    foot += wrap_to(CAUTION_SHORT, 9.0, 7.5)
-    fig.text(0.02, 0.02, "\n".join(foot), fontsize=7.5, va="bottom", ha="left",
-             color="#555555")
-    with atomic_path(path) as tmp:
-        fig.savefig(tmp, dpi=dpi, format="png")
-    return path
-
-
-def write_climate(result, out_dir, title=None):
-    """Write ``downtime.csv``, ``climate-rows.csv`` and ``downtime.png``, all or none.
-
-    Parameters
-    ----------
-    result : ClimateResult
-    out_dir : str or os.PathLike
-        Output folder (created if missing).
-    title : str, optional
-        Chart title.
-
-    Returns
-    -------
-    list of pathlib.Path
-    """
-    from harbor.outputs._atomic import staging_dir
-
-    files = ["downtime.csv", "climate-rows.csv", "downtime.png"]
-    with staging_dir(out_dir) as (stage, staged):
-        for f, text in ((files[0], downtime_csv_text(result)),
-                        (files[1], rows_csv_text(result))):
-            with open(stage / f, "w", encoding="utf-8", newline="") as fh:
-                fh.write(text)
-            staged.append(f)
-        plot_downtime(result, stage / files[2], title=title)
-        staged.append(files[2])
-    return [Path(out_dir) / f for f in files]
+    if name in studies.__all__:
+        return getattr(studies, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

@@ -8,12 +8,10 @@ from __future__ import annotations
 
 import difflib
 import math
-import numbers
 from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
-import shapely
 
 try:  # Python >= 3.11
     import tomllib as _toml
@@ -21,9 +19,14 @@ except ModuleNotFoundError:  # pragma: no cover - Python 3.10
     import tomli as _toml
 
 from harbor.errors import InputError
-from harbor.geometry.layout import Arm, Land, Layout, Point
+from harbor.geometry import checks
+from harbor.geometry.layout import Arm, Land, Layout, Point, join_ends
 from harbor.geometry.site import (SCALE_NOTE_ABOVE, Site, lonlat_anchor, lonlat_problem,
                                   parse_crs)
+from harbor.solver.resolution import coarse_grid_problem
+from harbor.study._files import MAX_SCENARIO_BYTES, read_text
+from harbor.study._limits import (MAX_ARM_VERTICES, MAX_COORDINATE, MAX_LAND_VERTICES,
+                                  PEAK_RATIO, as_real, range_problem)
 
 
 @dataclass(frozen=True)
@@ -68,12 +71,20 @@ class GridSpec:
     """The computation grid: spacing and bounds ``(xmin, ymin, xmax, ymax)`` in the
     work frame (m); bounds are always filled in by the reader (a default is derived from
     the layout and points when the file gives none). ``ground_spacing`` is the
-    ``[grid] spacing`` as written, in ground metres; ``spacing`` is the same step in
-    work-frame units (ground spacing x the CRS's scale factor at the site)."""
+    ``[grid] spacing`` in ground metres; ``spacing`` the same step in work-frame units
+    (ground spacing x the CRS's scale factor at the site when that differs from 1 by
+    more than ``SCALE_NOTE_ABOVE``)."""
 
     spacing: float
     bounds: tuple
     ground_spacing: float | None = None
+
+
+class UnknownSea(InputError, KeyError):
+    """No sea state of that name (an :class:`InputError` that is also a KeyError)."""
+
+    def __str__(self):  # KeyError would quote the message
+        return InputError.__str__(self)
 
 
 @dataclass(frozen=True)
@@ -100,12 +111,34 @@ class Scenario:
     points: tuple = field(default_factory=tuple)
     grid: GridSpec | None = None
 
-    def sea(self, name: str) -> Sea:
-        """Return the sea state called ``name`` (KeyError if none)."""
+    def sea(self, name: str, key: str = "sea") -> Sea:
+        """Return the sea state called ``name``.
+
+        Parameters
+        ----------
+        name : str
+            The sea state's name as written in the scenario.
+        key : str
+            What to name in the message (``"--sea"`` from the command line).
+
+        Returns
+        -------
+        Sea
+
+        Raises
+        ------
+        harbor.errors.InputError
+            No such sea state; the message suggests the nearest name (or lists them).
+            It is also a :class:`KeyError`, as before.
+        """
         for s in self.seas:
             if s.name == name:
                 return s
-        raise KeyError(name)
+        names = [s.name for s in self.seas]
+        near = difflib.get_close_matches(str(name), names, n=1)
+        hint = f" (did you mean '{near[0]}'?)" if near else f" (known: {', '.join(names)})"
+        raise UnknownSea(f"no sea state named '{name}'{hint}", file=self.path or None,
+                         key=key)
 
 
 # ---------------------------------------------------------------------------------------
@@ -117,7 +150,8 @@ class Scenario:
 MAX_GRID_POINTS = 4_000_000
 
 _KEYS = {
-    "top": ("title", "site", "arm", "land", "sea", "point", "grid"),
+    "top": ("title", "site", "arm", "land", "sea", "point", "grid",
+            "alternative"),  # layout alternatives: read by harbor.study.alternatives
     "site": ("crs", "depth", "g"),
     "arm": ("name", "line", "rooted"),
     "land": ("name", "outline"),
@@ -156,15 +190,22 @@ class _Reader:
                 raise self.err("missing key", where, key)
             return default
         v = table[key]
-        if isinstance(v, bool) or not isinstance(v, numbers.Real):
+        f = as_real(v)
+        if f is None:
             raise self.err(f"must be a number, got {_show(v)}", where, key)
-        v = float(v)
-        if not math.isfinite(v):
-            raise self.err(f"must be a finite number, got {v}", where, key)
+        if not math.isfinite(f):
+            what = (f"is too large to be a number here (an integer of {len(str(abs(v)))} "
+                    "digits)" if isinstance(v, int) else
+                    f"must be a finite number, got {_show(v)}")
+            raise self.err(what, where, key)
+        v = f
         if positive and v <= 0:
             raise self.err(f"must be positive, got {v:g}", where, key)
         if lo is not None and hi is not None and not (lo <= v <= hi):
             raise self.err(f"must be between {lo:g} and {hi:g}, got {v:g}", where, key)
+        problem = range_problem(key, v, positive)
+        if problem:
+            raise self.err(problem, where, key)
         return v
 
     def string(self, table, key, where, *, required=True, default=None, choices=None):
@@ -186,13 +227,17 @@ class _Reader:
 
     def xy(self, v, where, key, label=""):
         if (not isinstance(v, (list, tuple, np.ndarray)) or len(v) != 2
-                or any(isinstance(c, bool) or not isinstance(c, numbers.Real) for c in v)):
+                or any(as_real(c) is None for c in v)):
             raise self.err(f"{label}must be a pair of numbers [x, y], got {_show(v)}",
                            where, key)
-        x, y = float(v[0]), float(v[1])
+        x, y = as_real(v[0]), as_real(v[1])
         if not (math.isfinite(x) and math.isfinite(y)):
             raise self.err(f"{label}coordinates must be finite, got {_show(v)}", where,
                            key)
+        if max(abs(x), abs(y)) > MAX_COORDINATE:
+            raise self.err(f"{label}coordinate {_show(v)} is larger than "
+                           f"{MAX_COORDINATE:g} in magnitude: no CRS reaches that far",
+                           where, key)
         return x, y
 
     def polyline(self, table, key, where, min_len):
@@ -202,6 +247,11 @@ class _Reader:
         if not isinstance(v, (list, tuple, np.ndarray)) or len(v) < min_len:
             raise self.err(f"must be a list of at least {min_len} [x, y] pairs, got "
                            f"{_show(v)}", where, key)
+        most = MAX_LAND_VERTICES if key == "outline" else MAX_ARM_VERTICES
+        if len(v) > most:
+            raise self.err(f"has {len(v):,} vertices, more than the {most:,} allowed; "
+                           "simplify the line (vertices a fraction of a grid spacing "
+                           "apart add nothing)", where, key)
         return np.array([self.xy(p, where, key, f"vertex {i + 1}: ")
                          for i, p in enumerate(v)], float)
 
@@ -257,18 +307,8 @@ def load_scenario(path) -> Scenario:
     ----------
     Preston-Werner, T. et al. (2021). TOML v1.0.0. https://toml.io/en/v1.0.0
     """
-    p = Path(path)
     file = str(path)
-    if not p.exists():
-        raise InputError("file not found", file=file)
-    if p.is_dir():
-        raise InputError("is a directory, not a scenario file", file=file)
-    try:
-        text = p.read_bytes().decode("utf-8")
-    except UnicodeDecodeError:
-        raise InputError("not UTF-8 text (a TOML file must be UTF-8)", file=file) from None
-    except OSError as e:
-        raise InputError(f"cannot read the file ({e.strerror})", file=file) from None
+    text = read_text(path, "scenario file", MAX_SCENARIO_BYTES)
     try:
         data = _toml.loads(text)
     except _toml.TOMLDecodeError as e:
@@ -313,7 +353,10 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
     -----
     - An arm end inside or on a land polygon, or on another arm (a junction), is rooted
       and does not diffract; the tolerance is max(0.01 m, 1e-6 × layout size).
-      ``rooted`` ("start", "end", "both", "none") overrides.
+      ``rooted`` ("start", "end", "both", "none") overrides. An end within
+      :data:`harbor.geometry.layout.JOIN_TOLERANCE` (0.25 m) of another arm or of land
+      is first moved onto it (:func:`harbor.geometry.layout.join_ends`), and the join is
+      reported by ``harbor check``, as is an end within 2 m that is not joined.
     - Default grid bounds: the box around arms and points padded on every side by
       max(20 % of its larger side, 50 m); land is left out so that a large shore
       polygon does not inflate the grid.
@@ -327,11 +370,33 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
     if not isinstance(data, dict):
         raise r.err("the scenario must be a table of keys")
     r.check_keys(data, "top", None)
-
     title = r.string(data, "title", None, required=False,
                      default=Path(path).stem if path else "untitled")
+    crs_code, depth, g, lonlat = _read_site(r, data)
+    # tables that name a layout file (GIS layer, DXF drawing) become plain tables here
+    from harbor.study.layout_files import expand_references
+    data = expand_references(data, path, crs_code, _KEYS)
+    raw_arms, raw_lands, seas, raw_points = _read_tables(r, data)
+    spacing, raw_bounds = _read_grid_table(r, data, lonlat)
+    _check_coordinates(r, crs_code, lonlat, raw_arms, raw_lands, raw_points, raw_bounds)
 
-    # --- [site] ----------------------------------------------------------------------
+    verts = np.concatenate([a for _, _, a, _ in raw_arms])
+    # lon/lat vertices may straddle the antimeridian: average them unwrapped
+    anchor = lonlat_anchor(verts[:, 0], verts[:, 1]) if lonlat else verts.mean(axis=0)
+    try:
+        site = Site(crs_code, (float(anchor[0]), float(anchor[1])), depth, g)
+    except InputError as e:
+        raise r.err(e.problem, "[site]", "crs") from None
+    work = _to_work(r, site, crs_code)
+    layout, points, allxy = _build_layout(r, site, work, raw_arms, raw_lands, raw_points)
+    grid = _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g,
+                      scale=float(site.scale_factor))
+    return Scenario(path=str(path) if path else "", title=title, site=site,
+                    layout=layout, seas=tuple(seas), points=tuple(points), grid=grid)
+
+
+def _read_site(r, data):
+    """``[site]``: (crs code, depth, g, whether the CRS is lon/lat)."""
     if "site" not in data:
         raise r.err("missing table [site] (with crs and depth)", None, "site")
     site_t = data["site"]
@@ -345,9 +410,11 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
         crs = parse_crs(crs_code)
     except InputError as e:
         raise r.err(e.problem, "[site]", "crs") from None
-    lonlat = bool(crs.is_geographic)
+    return crs_code, depth, g, bool(crs.is_geographic)
 
-    # --- raw tables (scenario CRS) ------------------------------------------------------
+
+def _read_tables(r, data):
+    """``[[arm]]``, ``[[land]]``, ``[[sea]]``, ``[[point]]`` as raw values (scenario CRS)."""
     arm_ts = r.tables(data, "arm")
     land_ts = r.tables(data, "land")
     sea_ts = r.tables(data, "sea")
@@ -358,7 +425,6 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
     if not sea_ts:
         raise r.err("the scenario has no [[sea]]; at least one sea state is needed",
                     None, "sea")
-
     raw_arms = []
     for i, t in enumerate(arm_ts):
         where = _label("arm", t, i)
@@ -377,9 +443,7 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
         outline = r.polyline(t, "outline", where, 3)
         raw_lands.append((where, name, outline))
 
-    seas = []
-    for i, t in enumerate(sea_ts):
-        seas.append(_read_sea(r, t, i))
+    seas = [_read_sea(r, t, i) for i, t in enumerate(sea_ts)]
     _unique(r, [(_label("sea", t, i), s.name) for i, (t, s) in
                 enumerate(zip(sea_ts, seas))], "sea")
 
@@ -394,31 +458,38 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
         limit = r.number(t, "limit", where, required=False, positive=True)
         raw_points.append((where, name, at, limit))
     _unique(r, [(w, n) for w, n, _, _ in raw_points], "point")
+    return raw_arms, raw_lands, seas, raw_points
 
+
+def _read_grid_table(r, data, lonlat=False):
+    """``[grid]``: (spacing or None, bounds [xmin, ymin, xmax, ymax] or None)."""
     grid_t = data.get("grid")
+    if grid_t is None:
+        return None, None
+    if not isinstance(grid_t, dict):
+        raise r.err("must be a table [grid]", None, "grid")
+    r.check_keys(grid_t, "grid", "[grid]")
+    spacing = r.number(grid_t, "spacing", "[grid]", positive=True)
     raw_bounds = None
-    spacing = None
-    if grid_t is not None:
-        if not isinstance(grid_t, dict):
-            raise r.err("must be a table [grid]", None, "grid")
-        r.check_keys(grid_t, "grid", "[grid]")
-        spacing = r.number(grid_t, "spacing", "[grid]", positive=True)
-        if "bounds" in grid_t:
-            b = grid_t["bounds"]
-            if (not isinstance(b, (list, tuple)) or len(b) != 4 or
-                    any(isinstance(c, bool) or not isinstance(c, numbers.Real)
-                        or not math.isfinite(c) for c in b)):
-                raise r.err(f"must be four numbers [xmin, ymin, xmax, ymax], got "
-                            f"{_show(b)}", "[grid]", "bounds")
-            raw_bounds = [float(c) for c in b]
-            if lonlat and raw_bounds[0] > raw_bounds[2] and raw_bounds[1] < raw_bounds[3]:
-                # a lon/lat box across the antimeridian (xmin east of it, xmax west)
-                raw_bounds[2] += 360.0
-            if not (raw_bounds[0] < raw_bounds[2] and raw_bounds[1] < raw_bounds[3]):
-                raise r.err("must be [xmin, ymin, xmax, ymax] with xmin < xmax and "
-                            f"ymin < ymax, got {_show(b)}", "[grid]", "bounds")
+    if "bounds" in grid_t:
+        b = grid_t["bounds"]
+        if (not isinstance(b, (list, tuple)) or len(b) != 4 or
+                any(as_real(c) is None or not math.isfinite(as_real(c))
+                    or abs(as_real(c)) > MAX_COORDINATE for c in b)):
+            raise r.err(f"must be four numbers [xmin, ymin, xmax, ymax], got "
+                        f"{_show(b)}", "[grid]", "bounds")
+        raw_bounds = [float(c) for c in b]
+        if lonlat and raw_bounds[0] > raw_bounds[2] and raw_bounds[1] < raw_bounds[3]:
+            # a lon/lat box across the antimeridian (xmin east of it, xmax west)
+            raw_bounds[2] += 360.0
+        if not (raw_bounds[0] < raw_bounds[2] and raw_bounds[1] < raw_bounds[3]):
+            raise r.err("must be [xmin, ymin, xmax, ymax] with xmin < xmax and "
+                        f"ymin < ymax, got {_show(b)}", "[grid]", "bounds")
+    return spacing, raw_bounds
 
-    # --- coordinates in range for the CRS -----------------------------------------------
+
+def _check_coordinates(r, crs_code, lonlat, raw_arms, raw_lands, raw_points, raw_bounds):
+    """Coordinates in range for the CRS (lon/lat), or not lon/lat under a projected CRS."""
     coord_sets = ([(w, "line", a) for w, _, a, _ in raw_arms]
                   + [(w, "outline", a) for w, _, a in raw_lands]
                   + [(w, "at", a) for w, _, a, _ in raw_points])
@@ -435,125 +506,100 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
                 if problem:
                     pre = f"vertex {j + 1}: " if len(arr) > 1 and key != "bounds" else ""
                     raise r.err(pre + problem, where, key)
-    else:
-        for where, _, a, _ in raw_arms:
-            # Nobody builds a breakwater shorter than one metre (or foot): such an arm
-            # is almost surely lon/lat written under a projected CRS.
-            if (np.all(np.abs(a[:, 0]) <= 180) and np.all(np.abs(a[:, 1]) <= 90)
-                    and np.ptp(a, axis=0).max() < 1.0):
-                raise r.err(f"the arm is shorter than one unit of {crs_code}; its "
-                            "coordinates look like longitude/latitude: set crs = "
-                            "\"EPSG:4326\" in [site] or give coordinates in the CRS",
-                            where, "line")
+        return
+    for where, _, a, _ in raw_arms:
+        # Nobody builds a breakwater shorter than one metre (or foot): such an arm
+        # is almost surely lon/lat written under a projected CRS.
+        if (np.all(np.abs(a[:, 0]) <= 180) and np.all(np.abs(a[:, 1]) <= 90)
+                and np.ptp(a, axis=0).max() < 1.0):
+            raise r.err(f"the arm is shorter than one unit of {crs_code}; its "
+                        "coordinates look like longitude/latitude: set crs = "
+                        "\"EPSG:4326\" in [site] or give coordinates in the CRS",
+                        where, "line")
 
-    verts = np.concatenate([a for _, _, a, _ in raw_arms])
-    # lon/lat vertices may straddle the antimeridian: average them unwrapped
-    anchor = lonlat_anchor(verts[:, 0], verts[:, 1]) if lonlat else verts.mean(axis=0)
-    try:
-        site = Site(crs_code, (float(anchor[0]), float(anchor[1])), depth, g)
-    except InputError as e:
-        raise r.err(e.problem, "[site]", "crs") from None
 
+def _to_work(r, site, crs_code):
+    """A converter scenario CRS -> work frame that names the table on failure."""
     def work(where, key, arr):
         xw, yw = site.to_work(arr[:, 0], arr[:, 1])
         out = np.column_stack([np.atleast_1d(xw), np.atleast_1d(yw)])
         if not np.all(np.isfinite(out)):
             raise r.err(f"coordinates outside the domain of CRS {crs_code}", where, key)
         return out
+    return work
 
-    # --- geometry in the work frame ------------------------------------------------------
+
+def _build_layout(r, site, work, raw_arms, raw_lands, raw_points):
+    """Arms, land and points in the work frame, checked by :mod:`harbor.geometry.checks`;
+    each geometry error becomes an :class:`InputError` naming the table and key."""
     arms_w = [(w, n, work(w, "line", a), rt) for w, n, a, rt in raw_arms]
     pts_w = [(w, n, work(w, "at", a)[0], lim) for w, n, a, lim in raw_points]
     allxy = np.concatenate([a for _, _, a, _ in arms_w] +
                            [p[None, :] for _, _, p, _ in pts_w])
-    size = float(np.ptp(allxy, axis=0).max())
-    tol = max(0.01, 1e-6 * size)
-
-    def show_xy(p):
-        x, y = site.from_work(p[0], p[1])
-        return f"({float(x):.6g}, {float(y):.6g})" if lonlat else \
-            f"({float(x):.2f}, {float(y):.2f})"
+    stray = checks.stray_vertex([(w, "line", a) for w, _, a, _ in arms_w]
+                                + [(w, "at", p[None, :]) for w, _, p, _ in pts_w])
+    if stray:
+        raise r.err(stray[2], stray[0], stray[1])
+    tol = checks.tolerance(float(np.ptp(allxy, axis=0).max()))
+    show_xy = _shower(site)
 
     lines = []
-    for where, name, a, _ in arms_w:
-        keep = np.r_[True, np.hypot(*np.diff(a, axis=0).T) > tol]
-        a = a[keep]
-        if len(a) < 2:
-            raise r.err("needs at least two distinct vertices", where, "line")
-        if np.hypot(*(a[0] - a[-1])) <= tol:
-            raise r.err("the line closes on itself (first and last vertex are the "
-                        "same); an arm is an open polyline", where, "line")
-        ls = shapely.LineString(a)
-        if not ls.is_simple:
-            raise r.err("the arm crosses itself", where, "line")
-        lines.append((where, name, a, ls))
-
-    for i in range(len(lines)):
-        for j in range(i + 1, len(lines)):
-            wi, _, ai, li = lines[i]
-            wj, _, aj, lj = lines[j]
-            if li.distance(lj) > tol:
-                continue
-            inter = li.intersection(lj)
-            ends = np.array([ai[0], ai[-1], aj[0], aj[-1]])
-            for geom in shapely.get_parts(inter):
-                if geom.geom_type != "Point":
-                    raise r.err(f"overlaps {wi} along part of its length", wj, "line")
-                p = np.array(geom.coords[0])
-                if np.min(np.hypot(*(ends - p).T)) > tol:
-                    raise r.err(f"crosses {wi} at {show_xy(p)}; arms may touch at an "
-                                "end but not cross", wj, "line")
+    for where, _, a, _ in arms_w:
+        try:
+            lines.append(checks.clean_arm_line(a, tol))
+        except checks.GeometryError as e:
+            raise r.err(e.text(show_xy), where, "line") from None
+    try:
+        checks.check_crossings(lines, tol)
+    except checks.GeometryError as e:
+        raise r.err(e.text(show_xy).replace("{other}", arms_w[e.other][0]),
+                    arms_w[e.index][0], "line") from None
 
     lands = []
     for where, name, a in raw_lands:
-        aw = work(where, "outline", a)
-        keep = np.r_[True, np.hypot(*np.diff(aw, axis=0).T) > tol]
-        aw = aw[keep]
-        if len(aw) > 1 and np.hypot(*(aw[0] - aw[-1])) <= tol:
-            aw = aw[:-1]
-        if len(aw) < 3:
-            raise r.err("needs at least three distinct vertices", where, "outline")
-        poly = shapely.Polygon(aw)
-        if not poly.is_valid:
-            # the reason carries work-frame coordinates, which the user never wrote
-            reason = shapely.is_valid_reason(poly).split("[")[0].strip()
-            raise r.err(f"the outline is not a valid polygon ({reason}); it must not "
-                        "cross itself", where, "outline")
-        if poly.area <= 0:
-            raise r.err("the outline encloses no area", where, "outline")
+        try:
+            poly = checks.clean_land_outline(work(where, "outline", a), tol)
+        except checks.GeometryError as e:
+            raise r.err(e.text(show_xy), where, "outline") from None
         lands.append(Land(name=name, outline=poly))
 
-    land_all = (shapely.union_all([ld.outline for ld in lands]) if lands
-                else shapely.Polygon())
-    arms = []
-    for k, ((where, name, a, ls), (_, _, _, rooted)) in enumerate(zip(lines, arms_w)):
-        others = [o for m, (_, _, _, o) in enumerate(lines) if m != k]
-        other_geom = shapely.MultiLineString(others) if others else None
+    # ends that miss another arm or land by centimetres are joined to it (the rule and
+    # its tolerance live in the geometry layer); `check` reports every join
+    lines, joins = join_ends(lines, [n for _, n, _, _ in arms_w], lands)
+    ends = checks.rooted_ends(lines, [ld.outline for ld in lands], tol,
+                              [rt for _, _, _, rt in arms_w])
+    # a joined end is a junction, whatever `rooted` says
+    ends = [(rs or any(j.joined and j.arm == n and j.end == "start" for j in joins),
+             re or any(j.joined and j.arm == n and j.end == "end" for j in joins))
+            for (_, n, _, _), (rs, re) in zip(arms_w, ends)]
+    arms = tuple(Arm(name=n, line=a, rooted_start=bool(rs), rooted_end=bool(re))
+                 for (_, n, _, _), a, (rs, re) in zip(arms_w, lines, ends))
+    layout = Layout(arms=arms, lands=tuple(lands), joins=tuple(joins))
 
-        def anchored(p):
-            q = shapely.Point(p)
-            if lands and land_all.distance(q) <= tol:
-                return True
-            return other_geom is not None and other_geom.distance(q) <= tol
+    if pts_w:
+        try:
+            checks.check_points(layout, np.array([p for _, _, p, _ in pts_w]), tol)
+        except checks.GeometryError as e:
+            raise r.err(e.text(show_xy), pts_w[e.index][0], "at") from None
+    points = [Point(name=n, at=(float(p[0]), float(p[1])), limit=lim)
+              for _, n, p, lim in pts_w]
+    return layout, points, allxy
 
-        if rooted is None:
-            rs, re = anchored(a[0]), anchored(a[-1])
-        else:
-            rs, re = rooted in ("start", "both"), rooted in ("end", "both")
-        arms.append(Arm(name=name, line=a, rooted_start=bool(rs), rooted_end=bool(re)))
-    layout = Layout(arms=tuple(arms), lands=tuple(lands))
 
-    all_arms = shapely.MultiLineString([ls for _, _, _, ls in lines])
-    points = []
-    for where, name, p, limit in pts_w:
-        q = shapely.Point(p)
-        if lands and land_all.distance(q) <= tol:
-            raise r.err(f"the point {show_xy(p)} is on land", where, "at")
-        if all_arms.distance(q) <= tol:
-            raise r.err(f"the point {show_xy(p)} is on an arm", where, "at")
-        points.append(Point(name=name, at=(float(p[0]), float(p[1])), limit=limit))
+def _shower(site):
+    """Render a work-frame position in the scenario's CRS for messages."""
+    def show_xy(p):
+        x, y = site.from_work(p[0], p[1])
+        return f"({float(x):.6g}, {float(y):.6g})" if site.is_lonlat else \
+            f"({float(x):.2f}, {float(y):.2f})"
+    return show_xy
 
-    # --- grid ---------------------------------------------------------------------------
+
+def _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g, scale=1.0):
+    """The grid: bounds (given, or around arms and points) and spacing (given, or a
+    tenth of the shortest wavelength), within :data:`MAX_GRID_POINTS`; at least
+    :data:`harbor.solver.resolution.MIN_POINTS_PER_WAVELENGTH` points per wavelength."""
+    given = spacing is not None
     if raw_bounds is not None:
         xs, ys = np.meshgrid([raw_bounds[0], raw_bounds[2]], [raw_bounds[1], raw_bounds[3]])
         cw = work("[grid]", "bounds", np.column_stack([xs.ravel(), ys.ravel()]))
@@ -567,32 +613,32 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
                   float(ymax + pad))
     w, h = bounds[2] - bounds[0], bounds[3] - bounds[1]
     # [grid] spacing is in ground metres; the grid is regular in the work frame, whose
-    # lengths are scale_factor times ground lengths (Web Mercator 1.41 at 45 N). Within
+    # lengths are `scale` times ground lengths (Web Mercator 1.41 at 45 N). Within
     # SCALE_NOTE_ABOVE of 1 (UTM in its zone, national grids) the step is kept in CRS
     # units, so that node coordinates stay round: the nodes are computed at their true
     # ground positions either way, the step only sets how densely they sample the field.
-    k = float(site.scale_factor)
-    if abs(k - 1.0) <= SCALE_NOTE_ABOVE:
-        k = 1.0
+    k = scale if abs(scale - 1.0) > SCALE_NOTE_ABOVE else 1.0
+    w, h = w / k, h / k
     if spacing is None:
         from harbor.waves import wavelength
         lmin = float(np.min(wavelength(np.array([s.period for s in seas]), depth, g)))
-        spacing = max(_nice_floor(lmin / 10.0), _fitting_spacing(w / k, h / k))
+        spacing = max(_nice_floor(lmin / 10.0), _fitting_spacing(w, h))
     else:
-        if spacing * k > max(w, h):
+        if spacing > max(w, h):
             raise r.err(f"spacing {spacing:g} m is larger than the grid "
                         f"({w:.0f} m × {h:.0f} m)", "[grid]", "spacing")
         n = grid_size(bounds, spacing * k)
         if n > MAX_GRID_POINTS:
-            fit = _fitting_spacing(w / k, h / k)
+            fit = _fitting_spacing(w, h)
             raise r.err(f"spacing {spacing:g} m over {w:.0f} m × {h:.0f} m gives "
                         f"{n:,} grid points, more than {MAX_GRID_POINTS:,}; a spacing "
                         f"of {fit:g} m or more would fit (or narrow the bounds)",
                         "[grid]", "spacing")
-    grid = GridSpec(spacing=float(spacing * k), bounds=bounds, ground_spacing=float(spacing))
-
-    return Scenario(path=str(path) if path else "", title=title, site=site,
-                    layout=layout, seas=tuple(seas), points=tuple(points), grid=grid)
+    problem = coarse_grid_problem(spacing, [s.period for s in seas], depth, g,
+                                  given=given)
+    if problem:
+        raise r.err(problem, "[grid]", "spacing")
+    return GridSpec(spacing=float(spacing * k), bounds=bounds, ground_spacing=float(spacing))
 
 
 def _unique(r: _Reader, items, kind):
@@ -628,6 +674,11 @@ def _read_sea(r: _Reader, t: dict, i: int) -> Sea:
             if k in t:
                 raise r.err("applies to spectrum = \"jonswap\" only", where, k)
     peak = r.number(t, "peak_period", where, required=False, positive=True)
+    if peak is not None and not (PEAK_RATIO[0] <= peak / period <= PEAK_RATIO[1]):
+        raise r.err(f"{peak:g} s is {peak / period:.3g} times the period T1/3 = "
+                    f"{period:g} s; a JONSWAP peak period is {PEAK_RATIO[0]:g} to "
+                    f"{PEAK_RATIO[1]:g} times T1/3 (about 1.05-1.13 for gamma 1-7)",
+                    where, "peak_period")
     gamma = r.number(t, "gamma", where, required=False, default=3.3, positive=True)
     if gamma < 1.0:
         # gamma < 1 would make the peak lower than the Pierson-Moskowitz shape it
@@ -660,11 +711,9 @@ def grid_size(bounds, spacing: float) -> int:
 
 
 def _nice_floor(v: float) -> float:
-    e = 10.0 ** math.floor(math.log10(v))
-    for m in (5.0, 2.5, 2.0, 1.0):
-        if m * e <= v:
-            return m * e
-    return e
+    from harbor.outputs.style import round_number
+
+    return round_number(v, (1.0, 2.0, 2.5, 5.0), up=False)
 
 
 def _fitting_spacing(w: float, h: float) -> float:

@@ -18,13 +18,18 @@ import math
 
 import numpy as np
 import pandas as pd
+import xarray as xr
 import shapely
 
 from harbor.cautions import CAUTION_SHORT
 from harbor.errors import InputError
+from harbor.geometry.entrance import entrance_width
 
 #: Columns of the sweep table and of its CSV file (contract of issue 6).
 SWEEP_COLUMNS = ["move", "entrance_width", "sea", "point", "kd", "height", "limit", "ok"]
+#: The table's columns: the contract columns, then ``valid`` (False where the value is
+#: outside its method's measured validity, the result's ``point_valid``).
+TABLE_COLUMNS = SWEEP_COLUMNS + ["valid"]
 
 #: Narrowest gap (m) a moved head may leave to another arm or land. A thin-barrier model
 #: says nothing useful about a slit narrower than this, and no navigable entrance is
@@ -35,18 +40,6 @@ MIN_GAP = 1.0
 #: Most positions one sweep may ask for (each is a full solve of every sea state).
 MAX_MOVES = 400
 
-SWEEP_EXAMPLE = """example:
-  harbor sweep scenarios/demo.toml --arm "west arm" --move -40 60 10 --out screening
-  harbor sweep scenarios/demo.toml --arm "east arm" --move 0 50 5 --sea "storm N"
-
-Moves the free head of the arm along its end segment by each distance from MIN to MAX
-in steps of STEP metres (positive lengthens the arm and narrows the entrance), solves
-every sea state (or --sea) at the scenario's points, and writes sweep-<arm>.csv
-(columns move,entrance_width,sea,point,kd,height,limit,ok) and sweep-<arm>.png. Moves
-that would make arms cross, put the head in land or shorten the arm past the other end
-of its end segment are reported and skipped.
-"""
-
 
 class MoveRejected(ValueError):
     """A head position that the layout cannot take (the reason is the message)."""
@@ -55,9 +48,10 @@ class MoveRejected(ValueError):
 # --------------------------------------------------------------------------- geometry
 
 def _tolerance(layout) -> float:
-    # the same rule as the scenario reader: max(1 cm, 1e-6 x layout size)
-    b = layout.bounds()
-    return max(0.01, 1e-6 * max(b[2] - b[0], b[3] - b[1]))
+    # the scenario reader's rule (harbor.geometry.checks.tolerance)
+    from harbor.geometry.checks import layout_tolerance
+
+    return layout_tolerance(layout)
 
 
 def find_arm(scenario, name):
@@ -118,8 +112,9 @@ def move_head(scenario, arm, move):
     moved : harbor.study.scenario.Scenario
         A copy with the new head; the rest of the layout, the seas and points unchanged.
     width : float
-        Entrance width (m): shortest distance from the moved head to any other arm or
-        land.
+        Entrance width (m) of the moved layout,
+        :func:`harbor.geometry.entrance.entrance_width` (the narrowest water passage
+        between the structures).
 
     Raises
     ------
@@ -134,8 +129,9 @@ def move_head(scenario, arm, move):
     Notes
     -----
     With :math:`P_h` the head and :math:`P_o` the other vertex of the end segment, the
-    new head is :math:`P_h + m (P_h - P_o)/|P_h - P_o|`. The entrance width is
-    :math:`\\min(d(P, \\text{other arms}), d(P, \\text{land}))` (shapely distances).
+    new head is :math:`P_h + m (P_h - P_o)/|P_h - P_o|`. A move is rejected when the
+    head comes within :data:`MIN_GAP` of another arm or land; the width reported is
+    :func:`harbor.geometry.entrance.entrance_width`.
     """
     i, end = find_arm(scenario, arm)
     layout = scenario.layout
@@ -155,8 +151,12 @@ def move_head(scenario, arm, move):
     line[h] = new_head
     new_arm = dataclasses.replace(old, line=line)
     geom = shapely.LineString(line)
-    if not geom.is_simple:
-        raise MoveRejected("the arm would cross itself")
+    from harbor.geometry import checks
+
+    try:
+        checks.clean_arm_line(line, tol)
+    except checks.GeometryError:
+        raise MoveRejected("the arm would cross itself") from None
     land = layout.land_union()
     p = shapely.Point(new_head)
     if not land.is_empty and land.intersects(p):
@@ -172,9 +172,21 @@ def move_head(scenario, arm, move):
             if gap < MIN_GAP:
                 raise MoveRejected(f"the arm would pass {gap:.2f} m from '{a.name}', less "
                                    f"than {MIN_GAP:g} m (entrance closed)")
-    for pt in scenario.points:
-        if geom.distance(shapely.Point(pt.at)) <= tol:
-            raise MoveRejected(f"the arm would run over the point '{pt.name}'")
+    arms_new = tuple(new_arm if k == i else a for k, a in enumerate(layout.arms))
+    try:
+        checks.check_crossings([np.asarray(a.line, float) for a in arms_new], tol)
+    except checks.GeometryError as e:
+        raise MoveRejected(f"the arm would cross or touch '{arms_new[e.other].name}'"
+                           if e.index == i else
+                           f"the arm would cross or touch '{arms_new[e.index].name}'") from None
+    if scenario.points:
+        # the rule of the scenario reader and of solve(points=): no point on an arm
+        probs = checks.point_problems(dataclasses.replace(layout, arms=arms_new),
+                                      [p.at[0] for p in scenario.points],
+                                      [p.at[1] for p in scenario.points], tol)
+        for pt, prob in zip(scenario.points, probs):
+            if prob is not None and "arm" in prob and f"'{old.name}'" in prob:
+                raise MoveRejected(f"the arm would run over the point '{pt.name}'")
     others = [shapely.LineString(a.line) for a in layout.arms if a is not old]
     dists = [g.distance(p) for g in others]
     if not land.is_empty:
@@ -183,9 +195,10 @@ def move_head(scenario, arm, move):
     if width < MIN_GAP:
         raise MoveRejected(f"the head would be {width:.2f} m from another arm or land, "
                            f"less than {MIN_GAP:g} m (entrance closed)")
-    arms = tuple(new_arm if k == i else a for k, a in enumerate(layout.arms))
-    moved = dataclasses.replace(scenario, layout=dataclasses.replace(layout, arms=arms))
-    return moved, width
+    moved = dataclasses.replace(scenario, layout=dataclasses.replace(layout, arms=arms_new))
+    # the reported width is the one entrance width of every command (geometry.entrance)
+    passage = entrance_width(moved.layout)
+    return moved, (width if passage is None else passage)
 
 
 def move_range(lo, hi, step):
@@ -244,13 +257,17 @@ def sweep(scenario, arm, moves, sea=None, method="auto", progress=None):
 
     Returns
     -------
-    pandas.DataFrame
-        Columns ``move`` (m), ``entrance_width`` (m), ``sea``, ``point``, ``kd`` (K'),
-        ``height`` (m: H or H1/3), ``limit`` (m, NaN when the point has none), ``ok``
-        (nullable boolean: height <= limit; NA without a limit). One row per accepted
-        move, sea state and point. ``attrs``: ``arm``, ``skipped`` (list of
-        ``(move, reason)``), ``methods`` (dict move -> list of method names per sea),
-        ``warnings`` (list of str), ``cautions``.
+    xarray.Dataset
+        Dimensions ``move`` (the accepted moves, m), ``sea`` and ``point``:
+        ``entrance_width`` (move, m), ``kd`` and ``height`` (move, sea, point; m: H or
+        H1/3), ``limit`` (point, m, NaN when none), ``ok`` (1 height <= limit, 0 above,
+        NaN without a limit), ``valid`` (False where the value is outside its method's
+        measured validity), ``method`` (move, sea). Attributes: ``arm``, ``skipped``
+        (list of ``(move, reason)``), ``warnings`` (list of str), ``widest``
+        (``(width, move)`` or None, see :func:`widest_ok`), ``verdict``, ``title``,
+        ``scenario``, ``cautions``. The same labelled shape as
+        :func:`harbor.study.climate.climate_downtime`; :func:`sweep_table` gives the
+        tidy table (the rows of the CSV file).
 
     Raises
     ------
@@ -276,14 +293,9 @@ def sweep(scenario, arm, moves, sea=None, method="auto", progress=None):
 
     find_arm(scenario, arm)
     if sea is not None:
-        try:
-            scenario.sea(sea)
-        except KeyError:
-            names = [s.name for s in scenario.seas]
-            raise InputError(f"no sea state named '{sea}' (known: {', '.join(names)})",
-                             file=scenario.path or None, key="--sea") from None
+        scenario.sea(sea, key="--sea")  # the did-you-mean InputError
     moves = [float(m) for m in np.atleast_1d(np.asarray(moves, float))]
-    rows, skipped, methods, warnings = [], [], {}, []
+    done, skipped, warnings = [], [], []
     for n, m in enumerate(moves, 1):
         try:
             moved, width = move_head(scenario, arm, m)
@@ -291,25 +303,85 @@ def sweep(scenario, arm, moves, sea=None, method="auto", progress=None):
             skipped.append((m, str(e)))
         else:
             ds = assemble.solve(moved, sea=sea, grid=False, method=method)
-            methods[m] = [str(v) for v in ds.sea_method.values]
-            for w in ds.attrs["warnings"].split("\n"):
-                if w and w not in warnings:
-                    warnings.append(w)
-            lim = ds.point_limit.values
-            for a, s in enumerate(ds.sea.values):
-                for b, p in enumerate(ds.point.values):
-                    kd = float(ds.point_kd.values[a, b])
-                    hgt = float(ds.point_height.values[a, b])
-                    limit = float(lim[b])
-                    ok = pd.NA if math.isnan(limit) else bool(hgt <= limit)
-                    rows.append((m, width, str(s), str(p), kd, hgt, limit, ok))
+            for w in assemble.notices(ds, sea=sea):
+                if w.text not in warnings:
+                    warnings.append(w.text)
+            done.append((m, width, ds))
         if progress is not None:
             progress(f"sweep '{arm}'", n, len(moves))
-    df = pd.DataFrame(rows, columns=SWEEP_COLUMNS)
-    df["ok"] = df["ok"].astype("boolean")
-    df.attrs.update(arm=arm, skipped=skipped, methods=methods, warnings=warnings,
-                    cautions=CAUTION_SHORT)
+    seas = [sea] if sea is not None else [s.name for s in scenario.seas]
+    points = [p.name for p in scenario.points]
+    shape = (len(done), len(seas), len(points))
+    kd, height = np.full(shape, np.nan), np.full(shape, np.nan)
+    valid = np.ones(shape, bool)
+    method_names = np.full(shape[:2], "", dtype=object)
+    for i, (_, _, ds) in enumerate(done):
+        kd[i] = ds.point_kd.values
+        height[i] = ds.point_height.values
+        if "point_valid" in ds:
+            valid[i] = ds.point_valid.values
+        method_names[i] = [str(v) for v in ds.sea_method.values]
+    limit = np.array([np.nan if p.limit is None else p.limit for p in scenario.points], float)
+    with np.errstate(invalid="ignore"):
+        ok = np.where(np.isnan(limit), np.nan, (height <= limit).astype(float))
+    result = xr.Dataset(
+        {"entrance_width": ("move", np.array([w for _, w, _ in done], float),
+                            {"long_name": "entrance width: moved head to the nearest other "
+                                          "arm or land", "units": "m"}),
+         "kd": (("move", "sea", "point"), kd, {"long_name": "K' at the point", "units": "1"}),
+         "height": (("move", "sea", "point"), height,
+                    {"long_name": "wave height at the point (H or H1/3)", "units": "m"}),
+         "limit": ("point", limit, {"long_name": "allowable wave height", "units": "m"}),
+         "ok": (("move", "sea", "point"), ok,
+                {"long_name": "height <= limit (1) or above it (0); NaN without a limit",
+                 "flag_values": [0.0, 1.0], "flag_meanings": "over ok"}),
+         "valid": (("move", "sea", "point"), valid,
+                   {"long_name": "value inside the measured validity of its method"}),
+         "method": (("move", "sea"), method_names)},
+        coords={"move": np.array([m for m, _, _ in done], float), "sea": seas,
+                "point": points},
+        attrs=dict(arm=arm, skipped=skipped, warnings=warnings, cautions=CAUTION_SHORT,
+                   title=scenario.title, scenario=str(scenario.path or "")))
+    result["move"].attrs.update(long_name="distance the head moved along its end segment "
+                                          "(positive lengthens)", units="m")
+    table = sweep_table(result)
+    result.attrs["widest"] = widest_ok(table) if not table.empty else None
+    result.attrs["verdict"] = verdict(table)
+    return result
+
+
+def sweep_table(result):
+    """A sweep result as a tidy table: one row per move, sea state and point.
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+        From :func:`sweep`.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns :data:`TABLE_COLUMNS` (``ok`` nullable boolean, NA without a limit);
+        ``attrs`` those of the result.
+    """
+    nm, ns, npnt = (result.sizes[d] for d in ("move", "sea", "point"))
+    rep = ns * npnt
+    ok = result["ok"].values.ravel()
+    df = pd.DataFrame({
+        "move": np.repeat(result["move"].values, rep),
+        "entrance_width": np.repeat(result["entrance_width"].values, rep),
+        "sea": np.tile(np.repeat([str(v) for v in result["sea"].values], npnt), nm),
+        "point": np.tile([str(v) for v in result["point"].values], nm * ns),
+        "kd": result["kd"].values.ravel(), "height": result["height"].values.ravel(),
+        "limit": np.tile(result["limit"].values, nm * ns),
+        "ok": pd.array([pd.NA if np.isnan(v) else bool(v) for v in ok], dtype="boolean"),
+        "valid": result["valid"].values.ravel().astype(bool)}, columns=TABLE_COLUMNS)
+    df.attrs.update(result.attrs)
     return df
+
+
+def _as_table(table):
+    return sweep_table(table) if isinstance(table, xr.Dataset) else table
 
 
 def widest_ok(table):
@@ -317,8 +389,8 @@ def widest_ok(table):
 
     Parameters
     ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
+    table : xarray.Dataset or pandas.DataFrame
+        From :func:`sweep` (or its :func:`sweep_table`).
 
     Returns
     -------
@@ -326,6 +398,7 @@ def widest_ok(table):
         ``(entrance_width, move)`` in metres, or None when no position passes (or no
         point has a limit; see :func:`has_limits`).
     """
+    table = _as_table(table)
     lim = table[table["limit"].notna()]
     if lim.empty:
         return None
@@ -343,13 +416,14 @@ def has_limits(table) -> bool:
 
     Parameters
     ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
+    table : xarray.Dataset or pandas.DataFrame
+        From :func:`sweep` (or its :func:`sweep_table`).
 
     Returns
     -------
     bool
     """
+    table = _as_table(table)
     return bool(table["limit"].notna().any())
 
 
@@ -358,14 +432,15 @@ def verdict(table) -> str:
 
     Parameters
     ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
+    table : xarray.Dataset or pandas.DataFrame
+        From :func:`sweep` (or its :func:`sweep_table`).
 
     Returns
     -------
     str
         The widest passing entrance width (see :func:`widest_ok`), or why there is none.
     """
+    table = _as_table(table)
     if table.empty:
         return "no position of the head could be computed (every move was skipped)"
     if not has_limits(table):
@@ -375,8 +450,14 @@ def verdict(table) -> str:
         return ("no swept entrance width (from "
                 f"{table['entrance_width'].min():.1f} to {table['entrance_width'].max():.1f} m) "
                 "lets every point meet its limit in every sea state")
-    return ("widest entrance at which every point meets its limit in every sea state: "
+    text = ("widest entrance at which every point meets its limit in every sea state: "
             f"{best[0]:.1f} m (move {best[1]:+g} m)")
+    if "valid" in table:
+        at = table[(table["move"] == best[1]) & table["limit"].notna()]
+        if not at["valid"].astype(bool).all():
+            text += (" -- but some of those values are outside their method's measured "
+                     "validity (see the warnings): do not rely on this width")
+    return text
 
 
 def sweep_summary(table):
@@ -384,8 +465,8 @@ def sweep_summary(table):
 
     Parameters
     ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
+    table : xarray.Dataset or pandas.DataFrame
+        From :func:`sweep` (or its :func:`sweep_table`).
 
     Returns
     -------
@@ -393,172 +474,19 @@ def sweep_summary(table):
         Index (``move``, ``entrance_width``), one column per point: the largest height
         (m) over the sea states at that position.
     """
+    table = _as_table(table)
     out = table.pivot_table(index=["move", "entrance_width"], columns="point",
                             values="height", aggfunc="max", sort=False)
     out.columns.name = None
     return out[list(dict.fromkeys(table["point"]))]
 
 
-def sweep_text(table) -> str:
-    """The terminal table of ``harbor sweep``.
-
-    Parameters
-    ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
-
-    Returns
-    -------
-    str
-        One line per head position: move (m), entrance width (m) and, per point, the
-        highest height over the sea states (m), marked ``*`` above the point's limit.
-    """
-    summ = sweep_summary(table)
-    limits = table.groupby("point", sort=False)["limit"].first()
-    names = list(summ.columns)
-    w = max(10, *(min(len(n), 16) + 2 for n in names))
-    head = f"{'move':>8}{'width':>9}  " + "".join(f"{n[:16]:>{w}}" for n in names)
-    lim = f"{'(m)':>8}{'(m)':>9}  " + "".join(
-        f"{'limit ' + format(limits[n], '.2f') if not math.isnan(limits[n]) else 'no limit':>{w}}"
-        for n in names)
-    lines = ["highest wave height over the sea states (m); * above the point's limit",
-             head, lim, "-" * len(head)]
-    for (m, width), r in summ.iterrows():
-        cells = []
-        for n in names:
-            over = not math.isnan(limits[n]) and r[n] > limits[n]
-            cells.append(f"{format(r[n], '.2f') + ('*' if over else ' '):>{w}}")
-        lines.append(f"{format(m, '+g') if m else '0':>8}{width:>9.1f}  " + "".join(cells))
-    return "\n".join(lines)
 
 
-def sweep_csv_text(table) -> str:
-    """CSV text of a sweep table: columns :data:`SWEEP_COLUMNS`, no comment lines.
+def __getattr__(name):
+    # the tables, CSV text and charts moved to harbor.outputs.studies; old imports work
+    from harbor.outputs import studies
 
-    Parameters
-    ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
-
-    Returns
-    -------
-    str
-        ``ok`` is written ``true``/``false`` and left empty (as ``limit``) for points
-        without a limit, like ``points.csv``; lengths in m, 6 significant digits.
-
-    References
-    ----------
-    .. [1] Shafranovich, Y. (2005). Common Format and MIME Type for Comma-Separated
-       Values (CSV) Files. IETF RFC 4180.
-    """
-    out = table.copy()
-    out["ok"] = ["" if pd.isna(v) else ("true" if v else "false") for v in table["ok"]]
-    buf = io.StringIO()
-    out.to_csv(buf, index=False, columns=SWEEP_COLUMNS, lineterminator="\n",
-               float_format="%.6g", na_rep="")
-    return buf.getvalue()
-
-
-def plot_sweep(table, path, title=None, dpi=150):
-    """Write a PNG of wave height against entrance width.
-
-    Parameters
-    ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
-    path : str or os.PathLike
-        Output PNG; written atomically.
-    title : str, optional
-        First title line (default the arm's name).
-    dpi : int
-
-    Returns
-    -------
-    pathlib.Path
-
-    Notes
-    -----
-    One colour per point, one line style per sea state; each point's limit is a
-    dashed horizontal line in its colour; the widest passing width (if any) is marked;
-    the short caution is printed under the chart.
-    """
-    from harbor.outputs._atomic import atomic_path
-    from harbor.outputs.maps import new_figure, wrap_to
-
-    fig = new_figure((10.0, 6.2))
-    ax = fig.add_axes((0.08, 0.2, 0.62, 0.7))
-    colours = ["#0072b2", "#d55e00", "#009e73", "#cc79a7", "#e69f00", "#56b4e9",
-               "#000000", "#f0e442"]
-    styles = ["-", "--", "-.", ":"]
-    markers = ["o", "s", "^", "D", "v"]
-    points = list(dict.fromkeys(table["point"]))
-    seas = list(dict.fromkeys(table["sea"]))
-    for a, p in enumerate(points):
-        c = colours[a % len(colours)]
-        for b, s in enumerate(seas):
-            sub = table[(table["point"] == p) & (table["sea"] == s)].sort_values(
-                "entrance_width")
-            ax.plot(sub["entrance_width"], sub["height"], color=c,
-                    linestyle=styles[b % len(styles)], marker=markers[b % len(markers)],
-                    markersize=3.5, linewidth=1.4, label=f"{p} — {s}")
-        lim = table.loc[table["point"] == p, "limit"].dropna()
-        if not lim.empty:
-            ax.axhline(float(lim.iloc[0]), color=c, linestyle=(0, (6, 3)), linewidth=0.9,
-                       alpha=0.8)
-            ax.annotate(f"limit {p} {float(lim.iloc[0]):.2f} m", (1.0, float(lim.iloc[0])),
-                        xycoords=("axes fraction", "data"), xytext=(3, 0),
-                        textcoords="offset points", va="center", fontsize=7, color=c)
-    best = widest_ok(table)
-    if best is not None:
-        ax.axvline(best[0], color="#1b7a3a", linewidth=1.0)
-        ax.annotate(f"widest passing: {best[0]:.1f} m", (best[0], 1.0),
-                    xycoords=("data", "axes fraction"), xytext=(3, -10),
-                    textcoords="offset points", fontsize=8, color="#1b7a3a")
-    ax.set_xlabel("entrance width (m)")
-    ax.set_ylabel("wave height at the point, H or H$_{1/3}$ (m)")
-    ax.set_ylim(bottom=0)
-    ax.grid(True, color="#dddddd", linewidth=0.6)
-    ax.legend(loc="upper left", bbox_to_anchor=(1.13, 1.0), fontsize=7.5, frameon=False,
-              title="point — sea state", title_fontsize=8)
-    arm = table.attrs.get("arm", "")
-    ax.set_title(title or f"Entrance-width sweep: head of '{arm}' moved along its end "
-                 "segment", fontsize=11, loc="left")
-    foot = [verdict(table)]
-    skipped = table.attrs.get("skipped", [])
-    if skipped:
-        foot.append(f"skipped moves: {', '.join(f'{m:+g} m' for m, _ in skipped)}")
-    foot += wrap_to(CAUTION_SHORT, 9.0, 7.5)
-    fig.text(0.02, 0.02, "\n".join(foot), fontsize=7.5, va="bottom", ha="left",
-             color="#555555")
-    with atomic_path(path) as tmp:
-        fig.savefig(tmp, dpi=dpi, format="png")
-    return path
-
-
-def write_sweep(table, out_dir):
-    """Write ``sweep-<arm>.csv`` and ``sweep-<arm>.png`` into ``out_dir``, both or none.
-
-    Parameters
-    ----------
-    table : pandas.DataFrame
-        From :func:`sweep`.
-    out_dir : str or os.PathLike
-        Output folder (created if missing).
-
-    Returns
-    -------
-    list of pathlib.Path
-    """
-    from pathlib import Path
-
-    from harbor.outputs._atomic import slug, staging_dir
-
-    name = slug(table.attrs.get("arm", "arm"), "arm")
-    files = [f"sweep-{name}.csv", f"sweep-{name}.png"]
-    with staging_dir(out_dir) as (stage, staged):
-        with open(stage / files[0], "w", encoding="utf-8", newline="") as fh:
-            fh.write(sweep_csv_text(table))
-        staged.append(files[0])
-        plot_sweep(table, stage / files[1])
-        staged.append(files[1])
-    return [Path(out_dir) / f for f in files]
+    if name in studies.__all__:
+        return getattr(studies, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

@@ -42,6 +42,56 @@ def _check(wavelength, width):
     return L, B
 
 
+#: Largest working memory (bytes) the exact aperture solution may ask for; a wider gap is
+#: refused before anything is allocated (the superposition serves wide gaps to 0.005 in K').
+MAX_EXACT_BYTES = 2 * 1024**3
+
+
+def exact_memory(wavelength, width, nodes=None) -> int:
+    """Estimated peak working memory (bytes) of the exact aperture solution.
+
+    Parameters
+    ----------
+    wavelength, width : float
+        L and B (m).
+    nodes : int, optional
+        Chebyshev nodes (default :func:`default_nodes`).
+
+    Returns
+    -------
+    int
+        About ten complex m × m matrices for the aperture system and the complex blocks
+        of the field integral (32768 far and 4096 near points at a time, a few arrays
+        each), 16 bytes per complex number.
+    """
+    kb = np.pi * float(width) / float(wavelength)
+    m = float(default_nodes(kb) if nodes is None else int(nodes)) if np.isfinite(kb) else np.inf
+    return int(min(16.0 * (10.0 * m * m + 32768.0 * m + 6.0 * 4096.0 * m), 2.0**62))
+
+
+def check_exact_size(wavelength, width, nodes=None):
+    """Refuse an exact gap solution whose estimated memory exceeds :data:`MAX_EXACT_BYTES`.
+
+    Parameters
+    ----------
+    wavelength, width : float
+        L and B (m).
+    nodes : int, optional
+        Chebyshev nodes.
+
+    Raises
+    ------
+    ValueError
+        Naming B/L and the estimate (see :func:`exact_memory`).
+    """
+    need = exact_memory(wavelength, width, nodes)
+    if need > MAX_EXACT_BYTES:
+        raise ValueError(f"the exact aperture solution for B/L = {width / wavelength:.4g} "
+                         f"would need about {need / 2**30:.3g} GiB (limit "
+                         f"{MAX_EXACT_BYTES / 2**30:g} GiB); use method='superposition', "
+                         f"which is accurate to 0.005 in K' for B/L >= 3")
+
+
 def gap_superposition(x, y, wavelength, direction, width):
     r"""Gap field by superposing two semi-infinite solutions (Penney & Price 1952).
 
@@ -174,6 +224,7 @@ def aperture_solution(kb, alpha, m=None):
     .. [3] Mason, J. C., & Handscomb, D. C. (2003). *Chebyshev Polynomials*. Chapman &
        Hall/CRC, sect. 9.5 (the logarithmic-kernel integrals).
     """
+    check_exact_size(2.0 * np.pi, 2.0 * float(kb), m)   # kb = k B / 2 = pi B / L
     if m is None:
         m = default_nodes(kb)
     t, w = _aperture_cached(float(kb), float(np.cos(alpha)), int(m))
@@ -352,6 +403,7 @@ def gap_exact_many(x, y, wavelength, directions, width, nodes=None):
        and by slits. *Physical Review*, 54(11), 895-898.
     """
     L, B = _check(wavelength, width)
+    check_exact_size(L, B, nodes)
     alphas = np.array([check_direction(d) for d in np.atleast_1d(directions)])
     k = 2 * np.pi / L
     b = 0.5 * B
@@ -404,6 +456,7 @@ def gap_exact_energy(x, y, wavelength, directions, width, weights, nodes=None):
     that no per-direction field is stored: the hot path of directional random seas.
     """
     L, B = _check(wavelength, width)
+    check_exact_size(L, B, nodes)
     dirs = np.atleast_1d(np.asarray(directions, float))
     alphas = np.array([check_direction(d) for d in dirs])
     wts = np.asarray(weights, float)
@@ -486,6 +539,8 @@ def gap(x, y, wavelength, direction, width, method="auto"):
        and by slits. *Physical Review*, 54(11), 895-898.
     """
     L, B = _check(wavelength, width)
+    if method == "exact":
+        check_exact_size(L, B)
     if method == "auto":
         method = auto_method(L, direction, B)
     if method == "superposition":

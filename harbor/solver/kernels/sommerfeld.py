@@ -25,6 +25,37 @@ def check_direction(direction) -> float:
     return np.deg2rad(d)
 
 
+#: Farthest distance from the origin, in wavelengths, at which a kernel evaluates the
+#: field: beyond it k r loses every digit of its phase in double precision (the phase of
+#: exp(i k r) is meaningless when k r exceeds about 1e15).
+MAX_DISTANCE_WAVELENGTHS = 1e12
+
+
+def check_coordinates(x, y, wavelength):
+    """Refuse non-finite coordinates and points too far for a meaningful phase.
+
+    Parameters
+    ----------
+    x, y : numpy.ndarray
+        Coordinates (m).
+    wavelength : float
+        L (m).
+
+    Raises
+    ------
+    ValueError
+        If any coordinate is NaN or infinite, or farther than
+        :data:`MAX_DISTANCE_WAVELENGTHS` wavelengths from the origin.
+    """
+    if x.size and not (np.all(np.isfinite(x)) and np.all(np.isfinite(y))):
+        raise ValueError("coordinates must be finite (got NaN or infinity)")
+    far = MAX_DISTANCE_WAVELENGTHS * float(wavelength)
+    if x.size and max(float(np.max(np.abs(x))), float(np.max(np.abs(y)))) > far:
+        raise ValueError(f"coordinates farther than {MAX_DISTANCE_WAVELENGTHS:g} "
+                         "wavelengths from the origin: the phase of the wave is lost in "
+                         "rounding")
+
+
 def sommerfeld_terms(x, y, k, alpha, amplitude=_fast_amplitude, split=False):
     r"""The pieces of Sommerfeld's solution at points (x, y): geometric optics and diffraction.
 
@@ -125,7 +156,8 @@ def semi_infinite(x, y, wavelength, direction):
     Raises
     ------
     ValueError
-        If the wavelength is not positive and finite or the direction is outside (0, 180).
+        If the wavelength is not positive and finite, the direction is outside
+        (0, 180), or a coordinate is not finite (see :func:`check_coordinates`).
 
     Notes
     -----
@@ -160,6 +192,7 @@ def semi_infinite(x, y, wavelength, direction):
     k = 2.0 * np.pi / L
     x = np.asarray(x, dtype=float)
     y = np.asarray(y, dtype=float)
+    check_coordinates(x, y, L)
     lit1, lit2, d = sommerfeld_terms(x, y, k, alpha)
     x, y = np.broadcast_arrays(x, y)
     ca, sa = np.cos(alpha), np.sin(alpha)
