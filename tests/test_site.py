@@ -185,3 +185,25 @@ def test_non_conformal_crs_far_from_its_centre_is_refused():
         Site("EPSG:3035", fwd.transform(-20.0, 40.0), depth=8.0)
     near = Site("EPSG:3035", fwd.transform(10.0, 52.0), depth=8.0)
     assert near.angular_distortion_deg < 0.01
+
+
+@pytest.mark.parametrize("crs", ["EPSG:3857", "EPSG:32625", "EPSG:32629", "EPSG:27700"])
+def test_ground_frame_distances_match_geodesic(crs):
+    # Distances between points of a site carried to the ground frame against
+    # pyproj.Geod on the CRS's own ellipsoid (Karney 2013), whatever the CRS's own scale
+    # (Web Mercator 1.79 at 56 N). The frame is PROJ's transformation linearised at the
+    # site: the change of the CRS's scale across the site is left out, 2.3e-4 per km for
+    # Web Mercator at 56 N (d ln k / dy = tan(lat) / R, Snyder 1987 eq. 7-4): 3e-4 here.
+    site, (x, y) = _site_at(crs, -7.5, 56.0)
+    inv, _, geod = _geodesy(crs)
+    k = site.scale_factor
+    xs = x + k * np.array([0.0, 800.0, -300.0, 1500.0])
+    ys = y + k * np.array([0.0, 200.0, 900.0, -700.0])
+    gx, gy = site.to_ground(xs, ys)
+    lon, lat = inv(xs, ys)
+    for i in range(4):
+        for j in range(i + 1, 4):
+            _, _, d = geod.inv(lon[i], lat[i], lon[j], lat[j])
+            assert math.hypot(gx[j] - gx[i], gy[j] - gy[i]) == pytest.approx(d, rel=3e-4)
+    # the ground frame is true to scale and true-north-up at the site
+    assert site.ground_site().convergence_deg == pytest.approx(0.0, abs=1e-6)

@@ -121,14 +121,26 @@ def test_jonswap_gamma_one_is_bm_shape_in_tp():
     np.testing.assert_allclose(js / js.max(), bm / bm.max(), atol=0.01)
 
 
-@pytest.mark.parametrize("gamma", [1.0, 3.3, 7.0])
-def test_jonswap_m0_close_to_h13_squared_over_16(gamma):
-    # Goda (1988): beta_J is fitted so that the spectrum carries about H1/3^2/16; its
-    # factor (1.094 - 0.01915 ln gamma) adds 6-9 % (H1/3 somewhat below 4 sqrt(m0),
-    # about 3.8 sqrt(m0) in records: Goda, Random Seas, section 2.4, from memory).
-    tp = 9.0
+@pytest.mark.parametrize("gamma", [1.0, 3.3, 7.0, 20.0])
+@pytest.mark.parametrize("tp", [5.0, 12.0])
+def test_jonswap_m0_is_h13_squared_over_16(gamma, tp):
+    # H1/3 = 4 sqrt(m0), the spectral definition of the significant height (Goda,
+    # Random Seas, section 2.4): the spectrum must carry m0 = H1/3^2/16. Reference:
+    # scipy quad of the spectrum.
     m0, _ = _moments(lambda f: jonswap(f, 2.0, tp, gamma), 1.0 / tp)
-    assert 1.0 <= m0 / (2.0**2 / 16.0) <= 1.10
+    assert m0 == pytest.approx(2.0**2 / 16.0, rel=1e-6)
+
+
+def test_jonswap_beta_close_to_goda_fit():
+    # Goda (1988): beta_J = 0.0624 / (0.230 + 0.0336 g - 0.185 / (1.9 + g)) (without the
+    # record-statistics factor) gives m0 = H1/3^2/16 within about 0.3 % for 1 <= g <= 7.
+    f = np.linspace(0.07, 0.5, 50)
+    for g in (1.0, 3.3, 7.0):
+        goda = 0.0624 / (0.230 + 0.0336 * g - 0.185 / (1.9 + g))
+        shape = jonswap(f, 1.0, 9.0, g) / (9.0**-4 * f**-5 * np.exp(-1.25 * (9.0 * f) ** -4)
+                                           * g ** np.exp(-((9.0 * f - 1) ** 2)
+                                                          / (2 * np.where(9.0 * f <= 1, 0.07, 0.09) ** 2)))
+        assert shape == pytest.approx(goda, rel=0.004)
 
 
 @pytest.mark.parametrize("gamma", [1.0, 3.3, 7.0])
@@ -176,8 +188,10 @@ def test_components_reproduce_m0_and_tm02(kw):
 def test_components_shape_and_ranges():
     c = random_components(1.5, 7.0)
     n = DEFAULT_N_FREQ * DEFAULT_N_DIR
+    # no more components than the 12 x 36 grid (negligible ones are dropped)
+    assert 0.9 * n <= len(c) <= n
     for arr in (c.frequency, c.period, c.angle, c.weight):
-        assert arr.shape == (n,)
+        assert arr.shape == (len(c),)
     np.testing.assert_allclose(c.period, 1.0 / c.frequency)
     assert np.all(c.angle > -np.pi) and np.all(c.angle <= np.pi)
     assert np.all(c.weight > 0)

@@ -117,6 +117,8 @@ def test_sweep_of_collinear_entrance_reproduces_gap(gap_scenario, gap_sweep):
     # direction of travel 90 deg for waves from 180 deg true and 70 deg for waves from
     # 200 deg true (grid north = true north on the central meridian).
     assert abs(gap_scenario.site.convergence_deg) < 1e-6
+    k = gap_scenario.site.scale_factor
+    assert k == pytest.approx(0.9996, abs=1e-6)
     L = float(harbor.wavelength(6.0, 10.0))
     pts = {p.name: p.at for p in gap_scenario.points}
     local_dir = {"south": 90.0, "south-south-west": 70.0}
@@ -130,9 +132,12 @@ def test_sweep_of_collinear_entrance_reproduces_gap(gap_scenario, gap_sweep):
         np.testing.assert_allclose(sub["entrance_width"], B, atol=1e-6)
         for _, r in sub.iterrows():
             x, y = pts[r["point"]]
-            ref = abs(complex(harbor.gap(x - xc, y - Y0, L, local_dir[r["sea"]], B)))
-            assert r["kd"] == pytest.approx(ref, abs=1e-9), (m, r["sea"], r["point"])
-            assert r["height"] == pytest.approx(ref * height[r["sea"]], abs=1e-9)
+            # the waves see ground lengths: UTM lengths / k (k = 0.9996 on the central
+            # meridian, Snyder 1987 p. 57)
+            ref = abs(complex(harbor.gap((x - xc) / k, (y - Y0) / k, L, local_dir[r["sea"]],
+                                         B / k)))
+            assert r["kd"] == pytest.approx(ref, abs=1e-7), (m, r["sea"], r["point"])
+            assert r["height"] == pytest.approx(ref * height[r["sea"]], abs=1e-7)
 
 
 def test_gap_centre_matters(gap_scenario, gap_sweep):

@@ -33,6 +33,11 @@ _METRE_NAMES = {"metre", "meter", "m"}
 #: (UTM, national grids) is always preferable.
 MAX_ANGULAR_DISTORTION_DEG = 1.0
 
+#: A scenario CRS whose point scale factor at the site differs from 1 by more than this
+#: gets a note saying that lengths were corrected to ground distances. Projections made
+#: for mapping (UTM inside its zone, national grids) stay within 0.001.
+SCALE_NOTE_ABOVE = 0.002
+
 
 def parse_crs(code: str) -> pyproj.CRS:
     """Return the horizontal :class:`pyproj.CRS` for a scenario's ``crs`` value.
@@ -145,6 +150,32 @@ def lonlat_problem(lon: float, lat: float) -> str | None:
     return None
 
 
+def lonlat_anchor(lon, lat) -> tuple[float, float]:
+    """Mean position of lon/lat vertices that may straddle the antimeridian.
+
+    Parameters
+    ----------
+    lon, lat : array_like
+        Degrees.
+
+    Returns
+    -------
+    (float, float)
+        Longitude in [-180, 180) and latitude, degrees.
+
+    Notes
+    -----
+    Longitudes are unwrapped relative to the first vertex (each one replaced by the
+    equivalent within 180 deg of it) before averaging, so that vertices at 179.99 and
+    -179.99 average to 180, not to 0. A harbour never spans half the globe.
+    """
+    lon = np.asarray(lon, float).ravel()
+    lat = np.asarray(lat, float).ravel()
+    rel = np.mod(lon - lon[0] + 180.0, 360.0) - 180.0
+    m = float(np.mod(lon[0] + rel.mean() + 180.0, 360.0) - 180.0)
+    return m, float(lat.mean())
+
+
 class Site:
     """The site of a scenario: its CRS, work frame, depth and true-north convergence.
 
@@ -180,6 +211,14 @@ class Site:
         Meridian convergence of the work frame at the anchor, degrees, such that
         grid bearing = true bearing - convergence_deg (positive when grid north lies
         east of true north).
+    scale_factor : float
+        Point scale factor of the work frame at the anchor (work-frame length over
+        ground length on the ellipsoid), e.g. 0.9996-1.001 in a UTM zone, 1/cos(lat) in
+        Web Mercator; 1 for EPSG:4326 (the local work frame is true to scale there).
+    ground_crs : pyproj.CRS
+        The local conformal frame in which the waves are computed: a transverse
+        Mercator projection centred on the anchor, scale 1 there, on the scenario CRS's
+        own geodetic datum (the work frame itself for EPSG:4326).
     angular_distortion_deg : float
         Maximum angular distortion ω of the work projection at the anchor, degrees,
         from the singular values a ≥ b of its Jacobian on the ellipsoid,
@@ -208,6 +247,16 @@ class Site:
 
     References
     ----------
+    Lengths: the work frame keeps the user's coordinates, but a projected CRS is true to
+    scale only on its standard lines. The waves are therefore computed in
+    :attr:`ground_crs`, a transverse Mercator projection centred on the site with scale 1
+    there: over a harbour (a few km) its scale differs from 1 by less than 1e-7, so
+    distances in it are ground distances. Every point (grid node, arm vertex, berth) is
+    carried there by PROJ's transformation linearised at the site
+    (:meth:`to_ground`), whatever the scenario CRS's scale
+    (Web Mercator 1.41 at 45 N, a UTM zone far from its central meridian). Its grid
+    north is true north at the anchor, so directions need no convergence there.
+
     Snyder, J. P. (1987). Map Projections — A Working Manual. U.S. Geological Survey
     Professional Paper 1395, pp. 60-64 (transverse Mercator, convergence).
 
@@ -266,6 +315,23 @@ class Site:
                              f"{crs!r}")
         self.anchor_lonlat = (float(lon), float(lat))
         self.convergence_deg = self._convergence(wx, wy)
+        if self.is_lonlat:
+            self.ground_crs = self.work_crs
+            self.scale_factor = 1.0
+            self._to_ground = None
+        else:
+            glon, glat = self._work_to_geodetic.transform(wx, wy)
+            from pyproj.crs import ProjectedCRS
+            from pyproj.crs.coordinate_operation import TransverseMercatorConversion
+
+            self.ground_crs = ProjectedCRS(
+                conversion=TransverseMercatorConversion(
+                    latitude_natural_origin=float(glat),
+                    longitude_natural_origin=float(glon), scale_factor_natural_origin=1.0),
+                geodetic_crs=self.work_crs.geodetic_crs, name="harbor local frame")
+            self._to_ground = pyproj.Transformer.from_crs(self.work_crs, self.ground_crs,
+                                                          always_xy=True)
+            self.scale_factor = self._jacobian_scale
         if not self.angular_distortion_deg <= MAX_ANGULAR_DISTORTION_DEG:
             raise InputError(
                 f"CRS {crs!r} distorts angles by {self.angular_distortion_deg:.2g} "
@@ -304,6 +370,7 @@ class Site:
         jac = np.array([[(x[1] - x[0]) / de, (x[2] - x[0]) / dn],
                         [(y[1] - y[0]) / de, (y[2] - y[0]) / dn]])
         s1, s2 = np.linalg.svd(jac, compute_uv=False)
+        self._jacobian_scale = float(math.sqrt(s1 * s2))
         if not (np.isfinite(s1) and np.isfinite(s2)) or s1 + s2 == 0:
             return float("nan")
         return float(math.degrees(2.0 * math.asin((s1 - s2) / (s1 + s2))))
@@ -358,6 +425,81 @@ class Site:
             Degrees.
         """
         return self._work_to_ll.transform(np.asarray(xw, float), np.asarray(yw, float))
+
+    def to_ground(self, xw, yw):
+        """Work frame -> the local ground frame :attr:`ground_crs` (m, true to scale).
+
+        Parameters
+        ----------
+        xw, yw : float or array_like
+            Work-frame coordinates, m.
+
+        Returns
+        -------
+        xg, yg : numpy.ndarray
+            Ground-frame coordinates, m (the identity for EPSG:4326 scenarios).
+
+        Notes
+        -----
+        PROJ's transformation from the work frame to :attr:`ground_crs`, linearised at
+        the anchor (its Jacobian by central differences): straight arms drawn in the
+        scenario CRS stay straight and collinear heads collinear, so every geometric
+        decision (classic entrance, basin side) is that of the layout as drawn, while
+        lengths and angles are ground lengths and angles at the site. The neglected
+        second-order term is the change of the CRS's scale across the site: relative
+        2.3e-4 per km for Web Mercator at 56 N (tan(lat)/R), about 1e-4 per km for a
+        UTM zone 25 deg from its central meridian, far less within a zone.
+        """
+        xw, yw = np.asarray(xw, float), np.asarray(yw, float)
+        if self._to_ground is None:
+            return xw.copy(), yw.copy()
+        if getattr(self, "_ground_jac", None) is None:
+            # PROJ's transformation linearised at the anchor (central differences, 10 m)
+            ax, ay = self.anchor_work
+            h = 10.0
+            x, y = self._to_ground.transform(np.array([ax, ax + h, ax - h, ax, ax]),
+                                             np.array([ay, ay, ay, ay + h, ay - h]))
+            self._ground_jac = np.array([[(x[1] - x[2]) / (2 * h), (x[3] - x[4]) / (2 * h)],
+                                         [(y[1] - y[2]) / (2 * h), (y[3] - y[4]) / (2 * h)]])
+            self._ground_origin = (float(x[0]), float(y[0]))
+        j = self._ground_jac
+        dx, dy = xw - self.anchor_work[0], yw - self.anchor_work[1]
+        return (self._ground_origin[0] + j[0, 0] * dx + j[0, 1] * dy,
+                self._ground_origin[1] + j[1, 0] * dx + j[1, 1] * dy)
+
+    def ground_site(self):
+        """The site seen from its ground frame: a :class:`Site` in :attr:`ground_crs`.
+
+        Returns
+        -------
+        Site
+            Same depth and g; its work frame is the ground frame, so its
+            :meth:`travel_angle` gives directions there (convergence 0 at the anchor).
+        """
+        if self.is_lonlat:
+            return self
+        if getattr(self, "_ground_site", None) is None:
+            gx, gy = self.to_ground(*self.anchor_work)
+            self._ground_site = Site(self.ground_crs.to_wkt(), (float(gx), float(gy)),
+                                     self.depth, self.g)
+        return self._ground_site
+
+    def scale_note(self) -> str | None:
+        """A sentence for the user when the CRS's scale at the site is far from 1.
+
+        Returns
+        -------
+        str or None
+            None when ``|scale_factor - 1| <= SCALE_NOTE_ABOVE``.
+        """
+        k = self.scale_factor
+        if abs(k - 1.0) <= SCALE_NOTE_ABOVE:
+            return None
+        return (f"CRS {self.crs_code} has a scale factor of {k:.4f} at the site: its "
+                f"coordinates are {100 * abs(k - 1):.1f} % {'longer' if k > 1 else 'shorter'}"
+                " than ground distances there; the waves were computed with ground "
+                "distances (grid spacing in ground metres, every point projected to a "
+                "local frame true to scale), and the map's scale bar shows ground metres")
 
     # -- directions --------------------------------------------------------------------
 

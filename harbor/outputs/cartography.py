@@ -153,8 +153,11 @@ def _north_arrow(fig, ax, convergence_deg: float, inset=(0.6, 0.62)):
     return artists[0]
 
 
-def _scale_bar(fig, ax):
-    """Draw a scale bar (round length, metres) in the lower-left corner of the map.
+def _scale_bar(fig, ax, scale_factor=1.0):
+    """Draw a scale bar (round length, ground metres) in the lower-left corner of the map.
+
+    ``scale_factor`` is the result's ``scale_factor`` (map units per ground metre at
+    the site), so that the bar shows ground metres in any CRS.
 
     Sized on paper, not in data units: at most 1.6 in and 30 % of the map width, so the
     labels never crowd on a small map; the middle label is dropped below 0.9 in.
@@ -162,7 +165,7 @@ def _scale_bar(fig, ax):
     fw, _ = fig.get_size_inches()
     x0, x1 = ax.get_xlim()
     ax_w = ax.get_position().width * fw
-    m_per_in = (x1 - x0) / ax_w
+    m_per_in = (x1 - x0) / ax_w / float(scale_factor or 1.0)
     length = nice_below(min(1.6, 0.3 * ax_w) * m_per_in)
     bar = length / m_per_in
     tr = fig.dpi_scale_trans + transforms.ScaledTranslation(0.0, 0.0, ax.transAxes)

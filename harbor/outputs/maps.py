@@ -236,7 +236,7 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
         lab.set_va("center")
 
     obstacles = [_north_arrow(fig, ax, float(result.attrs.get("convergence_deg", 0.0) or 0.0)),
-                 _scale_bar(fig, ax)]
+                 _scale_bar(fig, ax, result.attrs.get("scale_factor", 1.0))]
     handles.extend(draw_points(fig, ax, result, name, info, obstacles, label_fontsize))
     return {"ax": ax, "mappable": cf, "label": cbar_label, "scale": denom, "info": info,
             "levels": fill, "extend": extend, "handles": handles, "name": name,

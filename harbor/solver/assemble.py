@@ -6,9 +6,11 @@ The result is an :class:`xarray.Dataset` (contract in DESIGN.md sect. 2 and in
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as _dt
 
 import numpy as np
+import shapely
 import xarray as xr
 
 from harbor import __version__
@@ -36,6 +38,41 @@ def grid_coordinates(grid):
     x = xmin + h * np.arange(int(np.floor((xmax - xmin) / h + 1e-9)) + 1)
     y = ymin + h * np.arange(int(np.floor((ymax - ymin) / h + 1e-9)) + 1)
     return x, y
+
+
+def ground_scenario(scenario):
+    """The scenario carried to its site's local ground frame (true distances).
+
+    Parameters
+    ----------
+    scenario : harbor.study.scenario.Scenario
+
+    Returns
+    -------
+    Scenario
+        Arms, land and points in :attr:`harbor.geometry.site.Site.ground_crs` (m) and
+        the site seen from there (:meth:`~harbor.geometry.site.Site.ground_site`); the
+        scenario itself when its work frame is already the ground frame (EPSG:4326).
+        Lengths measured in it (arm lengths, entrance widths, distances to heads) are
+        ground lengths whatever the scenario CRS's scale factor.
+    """
+    site = scenario.site
+    if getattr(site, "_to_ground", None) is None:
+        return scenario
+
+    def tr(a):
+        x, y = site.to_ground(a[:, 0], a[:, 1])
+        return np.column_stack([np.atleast_1d(x), np.atleast_1d(y)])
+
+    lay = scenario.layout
+    arms = tuple(dataclasses.replace(a, line=tr(np.asarray(a.line, float))) for a in lay.arms)
+    lands = tuple(dataclasses.replace(ld, outline=shapely.transform(ld.outline, tr))
+                  for ld in lay.lands)
+    pts = tuple(dataclasses.replace(p, at=tuple(float(v) for v in tr(np.array([p.at], float))[0]))
+                for p in scenario.points)
+    return dataclasses.replace(scenario, site=site.ground_site(),
+                               layout=dataclasses.replace(lay, arms=arms, lands=lands),
+                               points=pts, grid=None)
 
 
 def _sea_wavelength(sea, site):
@@ -202,7 +239,9 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         the validity warnings and notes as records along dimension ``notice``
         (``notice_code``, ``notice_text``, ``notice_sea`` and ``notice_point``, "" for
         all or none, ``notice_level``; read them with :func:`notices`). Attributes: ``title``, ``scenario``, ``crs``,
-        ``crs_wkt``, ``convergence_deg``, ``depth``, ``warnings`` (newline-joined),
+        ``crs_wkt``, ``convergence_deg``, ``scale_factor`` (work-frame length over ground
+        length at the site), ``ground_crs_wkt`` (the local frame of the computation),
+        ``depth``, ``warnings`` (newline-joined),
         ``cautions``, ``harbor_version``, ``created``, ``method``.
     """
     seas = list(scenario.seas)
@@ -245,11 +284,21 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
     wet = ~dry
     allx = np.concatenate([X[wet], ppx])
     ally = np.concatenate([Y[wet], ppy])
+    # the waves are computed at every point's ground position (local frame, true scale)
+    ground = ground_scenario(scenario)
+    allx, ally = site.to_ground(allx, ally)
+    gpx, gpy = site.to_ground(ppx, ppy)
+    gpts = [(p[0], float(a), float(b)) for p, a, b in zip(pts, np.atleast_1d(gpx),
+                                                        np.atleast_1d(gpy))]
+    note = site.scale_note()
+    if note:
+        # lengths were corrected: a note, the values are right
+        notes.append(Notice("crs-scale", note, level="note"))
     for i, s in enumerate(seas):
         cb = None
         if progress is not None:
             cb = (lambda done, total, _n=s.name: progress(_n, done, total))
-        k, r, mname, reach = solve_sea(scenario, s, allx, ally, method=method, progress=cb)
+        k, r, mname, reach = solve_sea(ground, s, allx, ally, method=method, progress=cb)
         nw = int(wet.sum())
         kd[i][wet] = k[:nw]
         ratio[i][wet] = r[:nw]
@@ -259,17 +308,20 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         L = _sea_wavelength(s, site)
         wavelengths.append(L)
         reaching.append(reach)
-        more = list(layout_warnings(scenario.layout, L, [(p[0], p[1], p[2]) for p in pts]))
-        more += grid_notices(scenario.grid, L, s.name)
+        more = list(layout_warnings(ground.layout, L, gpts))
+        gspec = scenario.grid
+        if gspec is not None and getattr(gspec, "ground_spacing", None):
+            gspec = dataclasses.replace(gspec, spacing=gspec.ground_spacing)
+        more += grid_notices(gspec, L, s.name)
         if method == "field":
             from harbor.solver.accuracy import field_method_notes
 
-            more += field_method_notes(scenario, s)
+            more += field_method_notes(ground, s)
         else:
-            alpha = float(site.travel_angle(s.from_deg))
+            alpha = float(ground.site.travel_angle(s.from_deg))
             # measured outside the method's validity: the lee that the concerned heads'
             # and bends' waves reach, and their near field (accuracy.invalid_mask)
-            bad, off = invalid_mask(scenario.layout, L, alpha, allx, ally,
+            bad, off = invalid_mask(ground.layout, L, alpha, allx, ally,
                                     label=f"sea '{s.name}'")
             if off:
                 nw = int(wet.sum())
@@ -347,6 +399,8 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
             scenario_crs=str(site.crs_code),
             crs_wkt=site.work_crs.to_wkt(),
             convergence_deg=float(site.convergence_deg),
+            scale_factor=float(site.scale_factor),
+            ground_crs_wkt=site.ground_crs.to_wkt(),
             depth=float(site.depth),
             warnings="\n".join(warnings),
             cautions=caution_text(),

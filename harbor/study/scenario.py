@@ -21,7 +21,8 @@ except ModuleNotFoundError:  # pragma: no cover - Python 3.10
 from harbor.errors import InputError
 from harbor.geometry import checks
 from harbor.geometry.layout import Arm, Land, Layout, Point, join_ends
-from harbor.geometry.site import Site, lonlat_problem, parse_crs
+from harbor.geometry.site import (SCALE_NOTE_ABOVE, Site, lonlat_anchor, lonlat_problem,
+                                  parse_crs)
 from harbor.solver.resolution import coarse_grid_problem
 from harbor.study._files import MAX_SCENARIO_BYTES, read_text
 from harbor.study._limits import (MAX_ARM_VERTICES, MAX_COORDINATE, MAX_LAND_VERTICES,
@@ -67,12 +68,16 @@ class Sea:
 
 @dataclass(frozen=True)
 class GridSpec:
-    """The computation grid: spacing (m) and bounds ``(xmin, ymin, xmax, ymax)`` in the
+    """The computation grid: spacing and bounds ``(xmin, ymin, xmax, ymax)`` in the
     work frame (m); bounds are always filled in by the reader (a default is derived from
-    the layout and points when the file gives none)."""
+    the layout and points when the file gives none). ``ground_spacing`` is the
+    ``[grid] spacing`` in ground metres; ``spacing`` the same step in work-frame units
+    (ground spacing x the CRS's scale factor at the site when that differs from 1 by
+    more than ``SCALE_NOTE_ABOVE``)."""
 
     spacing: float
     bounds: tuple
+    ground_spacing: float | None = None
 
 
 class UnknownSea(InputError, KeyError):
@@ -372,17 +377,20 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
     from harbor.study.layout_files import expand_references
     data = expand_references(data, path, crs_code, _KEYS)
     raw_arms, raw_lands, seas, raw_points = _read_tables(r, data)
-    spacing, raw_bounds = _read_grid_table(r, data)
+    spacing, raw_bounds = _read_grid_table(r, data, lonlat)
     _check_coordinates(r, crs_code, lonlat, raw_arms, raw_lands, raw_points, raw_bounds)
 
-    anchor = np.concatenate([a for _, _, a, _ in raw_arms]).mean(axis=0)
+    verts = np.concatenate([a for _, _, a, _ in raw_arms])
+    # lon/lat vertices may straddle the antimeridian: average them unwrapped
+    anchor = lonlat_anchor(verts[:, 0], verts[:, 1]) if lonlat else verts.mean(axis=0)
     try:
         site = Site(crs_code, (float(anchor[0]), float(anchor[1])), depth, g)
     except InputError as e:
         raise r.err(e.problem, "[site]", "crs") from None
     work = _to_work(r, site, crs_code)
     layout, points, allxy = _build_layout(r, site, work, raw_arms, raw_lands, raw_points)
-    grid = _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g)
+    grid = _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g,
+                      scale=float(site.scale_factor))
     return Scenario(path=str(path) if path else "", title=title, site=site,
                     layout=layout, seas=tuple(seas), points=tuple(points), grid=grid)
 
@@ -453,7 +461,7 @@ def _read_tables(r, data):
     return raw_arms, raw_lands, seas, raw_points
 
 
-def _read_grid_table(r, data):
+def _read_grid_table(r, data, lonlat=False):
     """``[grid]``: (spacing or None, bounds [xmin, ymin, xmax, ymax] or None)."""
     grid_t = data.get("grid")
     if grid_t is None:
@@ -471,6 +479,9 @@ def _read_grid_table(r, data):
             raise r.err(f"must be four numbers [xmin, ymin, xmax, ymax], got "
                         f"{_show(b)}", "[grid]", "bounds")
         raw_bounds = [float(c) for c in b]
+        if lonlat and raw_bounds[0] > raw_bounds[2] and raw_bounds[1] < raw_bounds[3]:
+            # a lon/lat box across the antimeridian (xmin east of it, xmax west)
+            raw_bounds[2] += 360.0
         if not (raw_bounds[0] < raw_bounds[2] and raw_bounds[1] < raw_bounds[3]):
             raise r.err("must be [xmin, ymin, xmax, ymax] with xmin < xmax and "
                         f"ymin < ymax, got {_show(b)}", "[grid]", "bounds")
@@ -483,8 +494,11 @@ def _check_coordinates(r, crs_code, lonlat, raw_arms, raw_lands, raw_points, raw
                   + [(w, "outline", a) for w, _, a in raw_lands]
                   + [(w, "at", a) for w, _, a, _ in raw_points])
     if raw_bounds is not None:
+        shown = list(raw_bounds)
+        if lonlat and shown[2] > 180.0:
+            shown[2] -= 360.0
         coord_sets.append(("[grid]", "bounds",
-                           np.array([raw_bounds[:2], raw_bounds[2:]], float)))
+                           np.array([shown[:2], shown[2:]], float)))
     if lonlat:
         for where, key, arr in coord_sets:
             for j, (lon, lat) in enumerate(arr):
@@ -581,7 +595,7 @@ def _shower(site):
     return show_xy
 
 
-def _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g):
+def _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g, scale=1.0):
     """The grid: bounds (given, or around arms and points) and spacing (given, or a
     tenth of the shortest wavelength), within :data:`MAX_GRID_POINTS`; at least
     :data:`harbor.solver.resolution.MIN_POINTS_PER_WAVELENGTH` points per wavelength."""
@@ -598,6 +612,13 @@ def _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g):
         bounds = (float(xmin - pad), float(ymin - pad), float(xmax + pad),
                   float(ymax + pad))
     w, h = bounds[2] - bounds[0], bounds[3] - bounds[1]
+    # [grid] spacing is in ground metres; the grid is regular in the work frame, whose
+    # lengths are `scale` times ground lengths (Web Mercator 1.41 at 45 N). Within
+    # SCALE_NOTE_ABOVE of 1 (UTM in its zone, national grids) the step is kept in CRS
+    # units, so that node coordinates stay round: the nodes are computed at their true
+    # ground positions either way, the step only sets how densely they sample the field.
+    k = scale if abs(scale - 1.0) > SCALE_NOTE_ABOVE else 1.0
+    w, h = w / k, h / k
     if spacing is None:
         from harbor.waves import wavelength
         lmin = float(np.min(wavelength(np.array([s.period for s in seas]), depth, g)))
@@ -606,7 +627,7 @@ def _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g):
         if spacing > max(w, h):
             raise r.err(f"spacing {spacing:g} m is larger than the grid "
                         f"({w:.0f} m × {h:.0f} m)", "[grid]", "spacing")
-        n = grid_size(bounds, spacing)
+        n = grid_size(bounds, spacing * k)
         if n > MAX_GRID_POINTS:
             fit = _fitting_spacing(w, h)
             raise r.err(f"spacing {spacing:g} m over {w:.0f} m × {h:.0f} m gives "
@@ -617,7 +638,7 @@ def _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g):
                                   given=given)
     if problem:
         raise r.err(problem, "[grid]", "spacing")
-    return GridSpec(spacing=float(spacing), bounds=bounds)
+    return GridSpec(spacing=float(spacing * k), bounds=bounds, ground_spacing=float(spacing))
 
 
 def _unique(r: _Reader, items, kind):
