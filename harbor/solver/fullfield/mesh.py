@@ -143,8 +143,8 @@ def build(water, slits, size, max_rounds=6):
     References
     ----------
     Shewchuk, J. R. (1996). Triangle: engineering a 2D quality mesh generator and
-    Delaunay triangulator. In *Applied Computational Geometry*, Lecture Notes in Computer
-    Science 1148, Springer, 203-222.
+    Delaunay triangulator. In *Applied Computational Geometry* (LNCS 1148), Springer,
+    203-222.
     """
     import triangle
 
