@@ -149,8 +149,9 @@ def cmd_check(args):
     print(f"  CRS {site.crs_code}; meridian convergence at the site {site.convergence_deg:+.3f} deg "
           f"(grid bearing = true bearing - convergence); depth {site.depth:g} m")
     from harbor.geometry.entrance import entrance_width
+    from harbor.solver.assemble import ground_scenario
 
-    width = entrance_width(sc.layout)
+    width = entrance_width(ground_scenario(sc).layout)   # ground metres
     if width is not None:
         print(f"  entrance width {width:.1f} m (narrowest water passage between the structures)")
     if sc.grid is not None:

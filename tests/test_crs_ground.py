@@ -104,3 +104,16 @@ def test_lonlat_anchor_across_the_antimeridian(solved):
     sc = solved["EPSG:4326"][0]
     lon, lat = sc.site.anchor_lonlat
     assert abs(abs(lon) - 180.0) < 0.01 and lat == pytest.approx(-35.0, abs=0.01)
+
+
+def test_sweep_and_check_widths_are_ground_metres_in_every_crs(solved, capsys):
+    # moving a head by 20 ground metres widens a collinear entrance by 20 m in any CRS;
+    # the reference is pyproj's Geod between the heads (as in the width test above)
+    from harbor.cli import main
+    from harbor.study.sweep import move_head
+
+    for crs, (sc, heads, _) in solved.items():
+        (lon, lat) = heads
+        _, _, d = GEOD.inv(lon[0], lat[0], lon[1], lat[1])
+        _, width = move_head(sc, "east arm", -20.0)
+        assert width == pytest.approx(d + 20.0, abs=0.1), crs

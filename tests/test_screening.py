@@ -287,7 +287,8 @@ def test_entrance_width_is_the_narrowest_passage(tmp_path, capsys):
     # lengthening the outer arm does not widen it
     assert entrance_width(_overlap(5.0).layout) == pytest.approx(2 * L, rel=1e-9)
     moved, width = move_head(sc, "outer", 1.0 * L)
-    assert width == pytest.approx(2 * L, rel=1e-9)
+    # sweep reports ground metres: the 2 L channel drawn in UTM units, divided by k
+    assert width == pytest.approx(2 * L / sc.site.scale_factor, rel=1e-6)
     # check prints the same number
     def xy(x, y):
         return f"[{X0 + x * L:.3f}, {Y0 + y * L:.3f}]"

@@ -126,10 +126,11 @@ def test_sweep_of_collinear_entrance_reproduces_gap(gap_scenario, gap_sweep):
     moves = sorted(gap_sweep["move"].unique())
     assert moves == [-50.0, 0.0, 30.0, 60.0]
     for m in moves:
-        B = 100.0 - m
-        xc = 0.5 * (WEST_HEAD + m + EAST_HEAD)
+        # moves and reported widths are ground metres: the head moves m k in UTM units
+        B = 100.0 - m * k
+        xc = 0.5 * (WEST_HEAD + m * k + EAST_HEAD)
         sub = gap_sweep[gap_sweep["move"] == m]
-        np.testing.assert_allclose(sub["entrance_width"], B, atol=1e-6)
+        np.testing.assert_allclose(sub["entrance_width"], B / k, atol=1e-6)
         for _, r in sub.iterrows():
             x, y = pts[r["point"]]
             # the waves see ground lengths: UTM lengths / k (k = 0.9996 on the central
@@ -178,11 +179,14 @@ def test_table_columns_and_ok(gap_sweep):
 
 def test_move_head_geometry_island(island_scenario):
     # The mole's head is 50 m short of the island (by construction).
+    # Moves and widths are ground metres (CRS lengths / k, k = 0.9996 on the UTM
+    # central meridian, Snyder 1987 p. 57).
+    k = island_scenario.site.scale_factor
     _, w0 = move_head(island_scenario, "mole", 0.0)
-    assert w0 == pytest.approx(50.0)
+    assert w0 == pytest.approx(50.0 / k)
     moved, w20 = move_head(island_scenario, "mole", 20.0)
-    assert w20 == pytest.approx(30.0)
-    np.testing.assert_allclose(moved.layout.arms[0].line[-1], [500000.0, 5000220.0])
+    assert w20 == pytest.approx(50.0 / k - 20.0)
+    np.testing.assert_allclose(moved.layout.arms[0].line[-1], [500000.0, 5000200.0 + 20.0 * k])
     # the rest of the scenario is untouched
     assert moved.points == island_scenario.points
     assert moved.layout.lands == island_scenario.layout.lands
@@ -193,10 +197,10 @@ def test_move_head_geometry_island(island_scenario):
     with pytest.raises(MoveRejected, match="entrance closed"):
         move_head(island_scenario, "mole", 50.0 - MIN_GAP / 2)
     with pytest.raises(MoveRejected, match="past the other vertex"):
-        move_head(island_scenario, "mole", -200.0)
+        move_head(island_scenario, "mole", -201.0)      # the segment is 200 / k = 200.08 m
     # shortened by 120 m the head is 80 m from the shore, nearer than the island (170 m)
     _, w = move_head(island_scenario, "mole", -120.0)
-    assert w == pytest.approx(80.0)
+    assert w == pytest.approx(200.0 / k - 120.0)
 
 
 def test_move_head_across_land(tmp_path):
@@ -292,7 +296,8 @@ def test_sweep_is_a_labelled_result(gap_scenario):
     res = sweep(gap_scenario, "west", [0.0, 30.0, 100.0], sea="south")
     assert res["height"].dims == ("move", "sea", "point")
     assert list(res["move"].values) == [0.0, 30.0]          # +100 closes the entrance
-    np.testing.assert_allclose(res["entrance_width"], [100.0, 70.0])
+    k = gap_scenario.site.scale_factor                      # widths in ground metres
+    np.testing.assert_allclose(res["entrance_width"], [100.0 / k, 100.0 / k - 30.0])
     assert [m for m, _ in res.attrs["skipped"]] == [100.0]
     t = sweep_table(res)
     assert list(t.columns) == SWEEP_COLUMNS + ["valid"]

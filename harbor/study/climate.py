@@ -493,8 +493,10 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
                              file=scenario.path or None, key="move") from None
     else:
         from harbor.geometry.entrance import entrance_width
+        from harbor.solver.assemble import ground_scenario
 
-        width = entrance_width(scenario.layout)   # the one definition, as check and sweep
+        # the one definition, as check and sweep, in ground metres
+        width = entrance_width(ground_scenario(scenario).layout)
     tab = climate_table(table)
     limited = tuple(p for p in scenario.points if p.limit is not None)
     if not limited:

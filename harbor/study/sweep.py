@@ -24,6 +24,7 @@ import shapely
 from harbor.cautions import CAUTION_SHORT
 from harbor.errors import InputError
 from harbor.geometry.entrance import entrance_width
+from harbor.solver.assemble import ground_scenario
 
 #: Columns of the sweep table and of its CSV file (contract of issue 6).
 SWEEP_COLUMNS = ["move", "entrance_width", "sea", "point", "kd", "height", "limit", "ok"]
@@ -144,10 +145,13 @@ def move_head(scenario, arm, move):
     move = float(move)
     if not math.isfinite(move):
         raise MoveRejected(f"move {move} is not a finite distance")
-    if move <= -(seg - tol):
+    # moves and distances are ground metres; the layout is in the scenario CRS, whose
+    # lengths are k times ground lengths at the site (k = 1.79 in Web Mercator at 56 N)
+    k = float(getattr(scenario.site, "scale_factor", 1.0) or 1.0)
+    if move * k <= -(seg - tol):
         raise MoveRejected(f"shortens the arm by {-move:g} m, past the other vertex of its "
-                           f"end segment ({seg:.1f} m long)")
-    new_head = head + move * (head - other) / seg
+                           f"end segment ({seg / k:.1f} m long)")
+    new_head = head + move * k * (head - other) / seg
     line[h] = new_head
     new_arm = dataclasses.replace(old, line=line)
     geom = shapely.LineString(line)
@@ -169,9 +173,9 @@ def move_head(scenario, arm, move):
             gap = shapely.LineString(a.line).distance(ext) if a is not old else math.inf
             if gap <= tol:
                 raise MoveRejected(f"the arm would cross or touch '{a.name}'")
-            if gap < MIN_GAP:
-                raise MoveRejected(f"the arm would pass {gap:.2f} m from '{a.name}', less "
-                                   f"than {MIN_GAP:g} m (entrance closed)")
+            if gap / k < MIN_GAP:
+                raise MoveRejected(f"the arm would pass {gap / k:.2f} m from '{a.name}', "
+                                   f"less than {MIN_GAP:g} m (entrance closed)")
     arms_new = tuple(new_arm if k == i else a for k, a in enumerate(layout.arms))
     try:
         checks.check_crossings([np.asarray(a.line, float) for a in arms_new], tol)
@@ -191,13 +195,13 @@ def move_head(scenario, arm, move):
     dists = [g.distance(p) for g in others]
     if not land.is_empty:
         dists.append(land.distance(p))
-    width = float(min(dists)) if dists else math.inf
+    width = float(min(dists)) / k if dists else math.inf
     if width < MIN_GAP:
         raise MoveRejected(f"the head would be {width:.2f} m from another arm or land, "
                            f"less than {MIN_GAP:g} m (entrance closed)")
     moved = dataclasses.replace(scenario, layout=dataclasses.replace(layout, arms=arms_new))
     # the reported width is the one entrance width of every command (geometry.entrance)
-    passage = entrance_width(moved.layout)
+    passage = entrance_width(ground_scenario(moved).layout)
     return moved, (width if passage is None else passage)
 
 
