@@ -467,3 +467,16 @@ def test_random_scenarios_solve_finite_or_refuse(tmp_path, capsys, depth, period
 def test_property_test_did_solve_some():
     # the property above must not pass by refusing everything (runs after it)
     assert SOLVED
+
+
+def test_absurd_point_is_named_in_a_short_line(capsys):
+    # the audit's `points --at 1e308 1e308`: refused, and the message stays one short line
+    from pathlib import Path
+
+    from harbor.cli import main
+
+    demo = str(Path(__file__).resolve().parents[1] / "scenarios" / "demo.toml")
+    assert main(["points", demo, "--at", "1e308", "1e308"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert "1e+308" in err and "100 km" in err
+    assert len(err.splitlines()) == 1 and len(err) < 300

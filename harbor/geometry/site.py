@@ -555,3 +555,25 @@ class Site:
         th = np.mod(0.5 * np.pi - b, 2.0 * np.pi)
         th = np.where(th >= 2.0 * np.pi, 0.0, th)
         return float(th) if th.ndim == 0 else th
+
+
+def format_xy(x, y, lonlat=False) -> str:
+    """A position in a scenario's CRS as messages show it.
+
+    Parameters
+    ----------
+    x, y : float
+        Easting and northing (m or CRS units), or longitude and latitude (degrees).
+    lonlat : bool
+        True for a geographic CRS (six significant digits, about 0.1 m).
+
+    Returns
+    -------
+    str
+        ``"(x, y)"``: two decimals for projected coordinates, a short scientific form
+        for absurd ones (so a mistyped 1e308 does not print as 309 digits).
+    """
+    if lonlat:
+        return f"({float(x):.6g}, {float(y):.6g})"
+    return "(" + ", ".join(f"{v:.2f}" if abs(v) < 1e9 else f"{v:.3g}"
+                           for v in (float(x), float(y))) + ")"

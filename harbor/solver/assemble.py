@@ -191,8 +191,9 @@ def given_points(scenario, points, key="points"):
             checks.check_points(scenario.layout, xy, tol)
         except checks.GeometryError as e:
             name, x, y = points[e.index][0], points[e.index][1], points[e.index][2]
-            shown = f"({float(x):.6g}, {float(y):.6g})" if site.is_lonlat else \
-                f"({float(x):.2f}, {float(y):.2f})"
+            from harbor.geometry.site import format_xy
+
+            shown = format_xy(x, y, site.is_lonlat)
             msg = e.text(lambda _: shown).replace("the point ", f"point '{name}' ", 1)
             raise InputError(msg,
                              file=scenario.path or None, key=key) from None

@@ -590,8 +590,9 @@ def _shower(site):
     """Render a work-frame position in the scenario's CRS for messages."""
     def show_xy(p):
         x, y = site.from_work(p[0], p[1])
-        return f"({float(x):.6g}, {float(y):.6g})" if site.is_lonlat else \
-            f"({float(x):.2f}, {float(y):.2f})"
+        from harbor.geometry.site import format_xy
+
+        return format_xy(x, y, site.is_lonlat)
     return show_xy
 
 
