@@ -42,7 +42,8 @@ def _solve_direction(scenario, method, period, from_deg, spreading, name):
               spreading=spreading)
     ds = assemble.solve(dataclasses.replace(scenario, seas=(sea,)), grid=False,
                         method=method)
-    warnings = [w for w in ds.attrs.get("warnings", "").split("\n") if w and name not in w]
+    # sentences about this internal per-direction sea would only confuse the table
+    warnings = list(dict.fromkeys(n for n in assemble.notices(ds) if name not in n))
     return ds.point_kd.values[0].copy(), float(ds.sea_reaching.values[0]), warnings
 
 
