@@ -1,13 +1,14 @@
 """What the cap on a random sea's band meshes (max_unknowns) costs in accuracy and time.
 
-Run:  python3 benchmarks/fullfield_random_cap.py [cap ...]
+Run:  python3 benchmarks/fullfield_random_cap.py [cap ...] [--ndir 12]
 
 A directional random sea (Bretschneider-Mitsuyasu, T1/3 = 6 s, s_max = 25, 6 x 12
 components, principal direction 90 deg) through a 30 m gap in a long straight thin wall
 at 5 m depth. The reference is Goda's sum over the exact aperture solution of every
 component at its own wavelength (harbor.solver.kernels.gap.gap_exact, Morse &
 Rubenstein 1938; components that travel towards the wall from the lee side use the
-mirrored solution): no cap, no mesh. The engine is run with each cap; printed: the
+mirrored solution): no cap, no mesh. The engine is run with each cap, with the capped
+bands' directions merged onto those of one band (the default) and without; printed: the
 capped bands, their energy, the largest mesh, seconds, and the error in K_eff and in
 the T_m02 ratio at 48 points behind the gap.
 """
@@ -57,16 +58,22 @@ def case(h=5.0, t13=6.0, s_max=25.0, B=30.0, n_freq=6, n_dir=12, principal=90.0,
 
 
 def main(argv=None):
-    argv = sys.argv[1:] if argv is None else argv
-    caps = [int(float(v)) for v in argv] or [15_000, 30_000, 60_000, 120_000]
-    layout, h, pts, comp, principal, kd, ratio = case()
+    argv = list(sys.argv[1:] if argv is None else argv)
+    n_dir = 12
+    if "--ndir" in argv:
+        i = argv.index("--ndir")
+        n_dir = int(argv[i + 1])
+        del argv[i:i + 2]
+    caps = [int(float(v)) for v in argv] or [45_000, 70_000, 120_000]
+    layout, h, pts, comp, principal, kd, ratio = case(n_dir=n_dir)
+    print(f"6 x {n_dir} components")
     print(f"reference (exact gap, all bands): K_eff {kd.min():.3f}-{kd.max():.3f}")
-    print(f"{'cap':>8} {'capped':>7} {'energy %':>8} {'T_c s':>6} {'largest':>8} "
+    print(f"{'cap':>8} {'merged':>6} {'capped':>7} {'energy %':>8} {'T_c s':>6} {'largest':>8} "
           f"{'s':>6} {'max dK':>7} {'mean dK':>8} {'max dratio':>10}")
-    for cap in caps:
+    for cap, merge in [(c, mg) for c in caps for mg in (True, False)]:
         m = HarbourModel(layout, h, points=pts)
         t0 = time.perf_counter()
-        r = m.random(comp, principal, max_unknowns=cap)
+        r = m.random(comp, principal, max_unknowns=cap, merge_capped=merge)
         sec = time.perf_counter() - t0
         capped = r.info["capped_periods"]
         bands = 1.0 / np.unique(comp.frequency)
@@ -76,7 +83,7 @@ def main(argv=None):
         big = max(b["unknowns"] for b in r.info["bands"])
         dk = np.abs(r.kd_points - kd)
         dr = np.abs(r.ratio_points - ratio)
-        print(f"{cap:8d} {len(capped):7d} {100 * wc:8.2f} {tc:6.2f} {big:8d} {sec:6.1f} "
+        print(f"{cap:8d} {str(merge):>6} {len(capped):7d} {100 * wc:8.2f} {tc:6.2f} {big:8d} {sec:6.1f} "
               f"{dk.max():7.4f} {dk.mean():8.4f} {dr.max():10.4f}", flush=True)
 
 

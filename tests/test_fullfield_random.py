@@ -55,3 +55,48 @@ def test_random_sea_for_many_principal_directions_at_once():
         assert len(r.info["bands"]) == 3
     one = HarbourModel(Layout(), 10.0, points=pts, points_per_wavelength=6).random(comp, 90.0)
     np.testing.assert_allclose(one.kd_points, res[1].kd_points, rtol=1e-9)
+
+
+def _goda_exact_gap(pts, comp, principal, h, B):
+    """Goda's K_eff and T_m02 ratio from the exact aperture solution of every component."""
+    from harbor.solver.kernels.gap import gap_exact
+
+    e0 = np.zeros(len(pts))
+    e2 = np.zeros(len(pts))
+    for f, w, a in zip(comp.frequency, comp.weight, comp.angle):
+        th = (principal + np.degrees(a)) % 360.0
+        L = wavelength(1.0 / f, h)
+        if 0.0 < th < 180.0:
+            u = gap_exact(pts[:, 0], pts[:, 1], L, th, B)
+        else:  # from the lee side: the mirror image
+            u = gap_exact(pts[:, 0], -pts[:, 1], L, 360.0 - th, B)
+        e0 += w * np.abs(u) ** 2
+        e2 += w * f * f * np.abs(u) ** 2
+    inc0 = comp.weight.sum()
+    inc2 = np.sum(comp.weight * comp.frequency ** 2)
+    return np.sqrt(e0 / inc0), np.sqrt((e0 / e2) / (inc0 / inc2))
+
+
+def test_capped_random_sea_through_a_gap_against_the_exact_solution():
+    # Reference: Goda, Takayama & Suzuki (1978) summed over the exact aperture solution
+    # (Morse & Rubenstein 1938, harbor.solver.kernels.gap.gap_exact) of every component
+    # at its own wavelength: no mesh and no cap. The engine caps the bands whose mesh
+    # would exceed max_unknowns (the top band, of 1.6 s, needs about 230 000) and
+    # solves them at the shortest period that fits. Recorded here (4 x 8 components, 30
+    # m gap, depth 5 m, 3 of 4 bands capped at about 5.6 s): max |dK_eff| 0.032, T_m02
+    # ratio within 0.08; on 6 x 36 components with 2 of 6 bands capped 0.011 and 0.17
+    # (benchmarks/fullfield_random_cap.py, docs/full-field.md).
+    h, B = 5.0, 30.0
+    arms = (Arm("w", np.array([[-1e4, 0.0], [-B / 2, 0.0]]), rooted_start=True),
+            Arm("e", np.array([[B / 2, 0.0], [1e4, 0.0]]), rooted_end=True))
+    X, Y = np.meshgrid(np.linspace(-30.0, 30.0, 5), np.linspace(10.0, 40.0, 4))
+    pts = np.column_stack([X.ravel(), Y.ravel()])
+    comp = random_components(1.0, 6.0, 25.0, n_freq=4, n_dir=8)
+    kd, ratio = _goda_exact_gap(pts, comp, 90.0, h, B)
+    m = HarbourModel(Layout(arms=arms), h, points=pts)
+    r = m.random(comp, 90.0, max_unknowns=40_000)
+    assert len(r.info["capped_periods"]) == 3
+    assert "field-bands-capped" in {n.code for n in m.notices}
+    assert np.abs(r.kd_points - kd).max() < 0.05, np.abs(r.kd_points - kd).max()
+    assert np.abs(r.ratio_points - ratio).max() < 0.15
+    assert kd.min() < 0.5  # points in the lee: a real test of diffraction

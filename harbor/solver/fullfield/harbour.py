@@ -161,6 +161,7 @@ class _Coast:
     normal: np.ndarray    # unit normal towards the sea (or either side for a thin wall)
     kr: float
     land_backed: bool
+    factor: float = 1.0
 
 
 @dataclass
@@ -236,6 +237,12 @@ class HarbourModel:
         thickness, in exterior wavelengths.
     g : float, optional
         Gravity (m/s^2).
+    attack : dict, optional
+        Main angle of attack (degrees from the wall normal, in [0, 90)) by arm or land
+        name, a land name may map to one angle per edge: the wall's admittance is
+        multiplied by cos(angle) (Isaacson & Qu 1990), so that it reflects exactly its
+        nominal K_r at that angle instead of at normal incidence
+        (:func:`harbor.solver.fullfield.engine.robin_reflection`).
 
     Notes
     -----
@@ -262,7 +269,7 @@ class HarbourModel:
     def __init__(self, layout, bathymetry=None, points=None, grid=None, reflection=None,
                  footprints=None, exterior_depth=None, still_water_level=0.0,
                  min_depth=MIN_DEPTH, points_per_wavelength=10.0, margin_wavelengths=1.0,
-                 layer_wavelengths=1.5, g=9.81):
+                 layer_wavelengths=1.5, g=9.81, attack=None):
         if bathymetry is None:
             raise InputError("the full-field model needs a bathymetry or a depth",
                              key="depth")
@@ -298,6 +305,19 @@ class HarbourModel:
                 raise InputError(f"reflection names '{key}', which is neither an arm nor a "
                                  f"land polygon", key="reflection")
         self._kr = {k: _kr_value(v, f"'{k}'") for k, v in reflection.items()}
+        self._attack = {}
+        for k, v in dict(attack or {}).items():
+            if k not in names:
+                raise InputError(f"attack names '{k}', which is neither an arm nor a land "
+                                 f"polygon", key="attack")
+            try:
+                a = np.asarray(v, float)
+            except (TypeError, ValueError):
+                a = np.array(np.nan)
+            if not np.all(np.isfinite(a)) or np.any(a < 0) or np.any(a >= 90):
+                raise InputError(f"angle of attack of '{k}' must lie in [0, 90) degrees "
+                                 f"from the wall normal, got {v!r}", key="attack")
+            self._attack[k] = a
         self._footprints = {}
         for k, v in dict(footprints or {}).items():
             if k not in {a.name for a in layout.arms}:
@@ -349,21 +369,32 @@ class HarbourModel:
             self.notices.append(Notice(code, text, point=point, level=level))
 
     def _segments(self):
-        """Reflecting segments in the local frame with their K_r: (segs (n,2,2), kr)."""
+        """Reflecting segments in the local frame: (segs (n,2,2), kr, admittance factor)."""
         o = self.origin
-        segs, krs = [], []
+        segs, krs, fac = [], [], []
+
+        def factor(name, n):
+            v = np.cos(np.radians(np.asarray(self._attack.get(name, 0.0), float))).ravel()
+            if v.size == 1:
+                return np.full(n, v[0])
+            if v.size == n:
+                return v
+            raise InputError(f"'{name}' has {n} edges but {v.size} angles of attack",
+                             key="attack")
         for a in self.layout.arms:
             line = np.asarray(a.line, float) - o
             kr = float(np.asarray(self._kr.get(a.name, self._kr_default)).ravel()[0])
             s = np.stack([line[:-1], line[1:]], axis=1)
             segs.append(s)
             krs.append(np.full(len(s), kr))
+            fac.append(factor(a.name, 1)[0] * np.ones(len(s)))
             if a.name in self._footprints:
                 fp = shapely.buffer(shapely.LineString(line), 0.5 * self._footprints[a.name],
                                     cap_style="flat", join_style="mitre")
                 c = np.asarray(fp.exterior.coords)
                 segs.append(np.stack([c[:-1], c[1:]], axis=1))
                 krs.append(np.full(len(c) - 1, kr))
+                fac.append(np.full(len(c) - 1, factor(a.name, 1)[0]))
         for land in self.layout.lands:
             c = np.asarray(land.outline.exterior.coords) - o
             s = np.stack([c[:-1], c[1:]], axis=1)
@@ -377,13 +408,16 @@ class HarbourModel:
                                  f"{v.size} reflection coefficients", key="reflection")
             segs.append(s)
             krs.append(kr)
+            f = factor(land.name, len(s))
+            fac.append(f)
             for ring in land.outline.interiors:
                 c = np.asarray(ring.coords) - o
                 segs.append(np.stack([c[:-1], c[1:]], axis=1))
                 krs.append(np.full(len(c) - 1, float(kr.mean())))
+                fac.append(np.full(len(c) - 1, float(f.mean())))
         if segs:
-            return np.concatenate(segs), np.concatenate(krs)
-        return np.zeros((0, 2, 2)), np.zeros(0)
+            return np.concatenate(segs), np.concatenate(krs), np.concatenate(fac)
+        return np.zeros((0, 2, 2)), np.zeros(0), np.zeros(0)
 
     def _depth_raw(self, xl, yl):
         o = self.origin
@@ -471,7 +505,7 @@ class HarbourModel:
         outer = layer.outer
         outer_box = shapely.box(*outer)
 
-        segs, krs = self._segments()
+        segs, krs, facs = self._segments()
         # land, footprints and dry ground
         land = shapely.Polygon()
         if self.layout.lands:
@@ -578,14 +612,16 @@ class HarbourModel:
         allsegs = np.concatenate([segs, dry_segs]) if len(dry_segs) else segs
         allkr = np.concatenate([krs, np.full(len(dry_segs), self._kr_dry)]) \
             if len(dry_segs) else krs
+        allfac = np.concatenate([facs, np.ones(len(dry_segs))]) if len(dry_segs) else facs
         kr_of = _nearest_kr(allsegs, allkr, self._kr_default)
-        space = Space(wm, layer, kr_of)
+        fac_of = _nearest_kr(allsegs, allfac, 1.0)
+        space = Space(wm, layer, kr_of, fac_of)
         t1 = time.perf_counter()
         solver = FrequencySolver.build(space, period, depth_used, h0, g)
         # dof classes and sides of the coast
         dl = space.doflocs
         inside = ((dl[0] > gam[0]) & (dl[0] < gam[2]) & (dl[1] > gam[1]) & (dl[1] < gam[3]))
-        coast = self._coast(water, slits, segs, krs, gam, outer, L0, o, kr_of)
+        coast = self._coast(water, slits, segs, krs, gam, outer, L0, o, kr_of, fac_of)
         side = np.ones(space.N)
         if coast is not None:
             mt = space.skmesh
@@ -635,7 +671,7 @@ class HarbourModel:
             out.append(c[ang > np.radians(15.0)])
         return np.concatenate(out) if out else np.zeros((0, 2))
 
-    def _coast(self, water, slits, segs, krs, gam, outer, L0, o, kr_of):
+    def _coast(self, water, slits, segs, krs, gam, outer, L0, o, kr_of, fac_of):
         """The straight coast where land or walls leave the total-field box, if any."""
         ringzone = shapely.box(*outer).difference(shapely.box(*gam))
         bnd = shapely.boundary(water)
@@ -675,8 +711,10 @@ class HarbourModel:
         land_backed = land_plus != land_minus
         if land_plus and not land_minus:
             n = -n
-        kr = float(kr_of((mid - 1e-3 * L0 * n)[:, None], -n[:, None])[0])
-        return _Coast(point=mid, normal=n, kr=kr, land_backed=land_backed)
+        at = (mid - 1e-3 * L0 * n)[:, None]
+        kr = float(kr_of(at, -n[:, None])[0])
+        fac = float(fac_of(at, -n[:, None])[0])
+        return _Coast(point=mid, normal=n, kr=kr, land_backed=land_backed, factor=fac)
 
     def _background(self, setup, alphas):
         """Background wave at the dofs for directions of travel ``alphas`` (rad)."""
@@ -705,7 +743,8 @@ class HarbourModel:
                     continue
                 nrm, sgn = -nrm, -1.0
             cos_t = -(d @ nrm)
-            R = robin_reflection(c.kr, np.arccos(np.clip(cos_t, 0.0, 1.0)))
+            R = robin_reflection(c.kr, np.arccos(np.clip(cos_t, 0.0, 1.0)),
+                                 attack=np.arccos(np.clip(c.factor, 0.0, 1.0)))
             dr = d - 2.0 * (d @ nrm) * nrm
             phr = k0 * ((d - dr) @ c.point)
             refl = R * np.exp(1j * (k0 * (dr[0] * dl[0] + dr[1] * dl[1]) + phr + ph0))
@@ -886,7 +925,7 @@ class HarbourModel:
                            info=dict(self._setup(float(period)).info))
 
     def random(self, components, principal_direction, progress=None,
-               max_unknowns=DEFAULT_MAX_UNKNOWNS):
+               max_unknowns=DEFAULT_MAX_UNKNOWNS, merge_capped=True):
         r"""Directional random sea by Goda's method over full-field solutions.
 
         Parameters
@@ -904,6 +943,10 @@ class HarbourModel:
             waves of the spectrum's tail, whose wavelength the mesh must follow) are
             solved at the shortest period whose mesh fits, with a ``field-bands-capped``
             notice. ``None``: every band at its own period.
+        merge_capped : bool, optional
+            The capped bands share one period; solve only the directions of the capped
+            band nearest to it and give every capped component the nearest of those
+            (default), instead of one back-substitution per capped component.
 
         Returns
         -------
@@ -965,14 +1008,34 @@ class HarbourModel:
             # every component of every member band, for every principal direction
             sels = [np.flatnonzero(freq == bands[b]) for b in members]
             comp = np.concatenate(sels)
-            dirs = (principals[:, None] + np.degrees(angle[comp])[None, :]).ravel()
+            if merge_capped and len(members) > 1:
+                # the capped bands share one period: solve only the directions of the
+                # band nearest to it and interpolate |eta|^2 linearly in direction
+                # between them for every other capped component (measured:
+                # docs/full-field.md)
+                ref = np.sort(angle[sels[int(np.argmin(periods[members]))]])
+                a = np.clip(angle[comp], ref[0], ref[-1])
+                i = np.clip(np.searchsorted(ref, a) - 1, 0, ref.size - 2)
+                t = (a - ref[i]) / (ref[i + 1] - ref[i])
+                col = np.concatenate([i, i + 1])
+                lin = np.concatenate([1.0 - t, t])
+                solved = ref
+            else:
+                col = np.arange(comp.size)
+                lin = np.ones(comp.size)
+                solved = angle[comp]
+            dirs = (principals[:, None] + np.degrees(solved)[None, :]).ravel()
             u, reach = self._directions(Ts, dirs)
-            p = (np.abs(u) ** 2).reshape(n_eval, npr, comp.size)
+            p = (np.abs(u) ** 2).reshape(n_eval, npr, solved.size)
             w = weight[comp]
             f2 = freq[comp] ** 2
-            e0 += np.einsum("epc,c->pe", p, w)
-            e2 += np.einsum("epc,c->pe", p, w * f2)
-            reaching += (reach.reshape(npr, comp.size) * w).sum(axis=1)
+            # weights gathered onto the solved directions
+            rep_ = col.size // comp.size
+            ws = np.bincount(col, lin * np.tile(w, rep_), minlength=solved.size)
+            ws2 = np.bincount(col, lin * np.tile(w * f2, rep_), minlength=solved.size)
+            e0 += np.einsum("epc,c->pe", p, ws)
+            e2 += np.einsum("epc,c->pe", p, ws2)
+            reaching += (reach.reshape(npr, solved.size) * ws).sum(axis=1)
             info = dict(self._setup(Ts).info)
             info["bands"] = [float(periods[b]) for b in members]
             infos.append(info)
