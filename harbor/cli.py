@@ -16,7 +16,7 @@ import sys
 from importlib import resources
 
 from harbor import __version__
-from harbor.cautions import CAUTION_SHORT, caution_text
+from harbor.cautions import CAUTION_SHORT
 from harbor.errors import InputError
 
 EPILOG_TAIL = "Results are preliminary; final design belongs to licensed coastal engineers under local codes."
@@ -187,7 +187,11 @@ def cmd_check(args):
                   f"(L = {L:.1f} m) -- {c.reason}")
     shown = [n for n in items if n.code != "full-field-planned"]
     _print_item_list(shown, [s.name for s, _ in planned])
-    print(f"note: {CAUTION_SHORT}")
+    from harbor.cautions import short_caution
+
+    line = short_caution(screening=any(not c.full_field for _, c in planned),
+                         full_field=any(c.full_field for _, c in planned))
+    print(f"note: {line}")
     return 0
 
 
@@ -267,16 +271,20 @@ def cmd_points(args):
     has_random = bool((ds.sea_kind.values == "random").any())
     # the warnings and the caution go to stderr, so stdout stays machine-readable
     _print_notices(ds, notices, file=sys.stderr)
-    print(f"note: {CAUTION_SHORT}", file=sys.stderr)
+    from harbor.cautions import result_cautions, result_short_caution
+
+    print(f"note: {result_short_caution(ds)}", file=sys.stderr)
     if args.json:
         items = list(dict.fromkeys(notices(ds)))
         print(json.dumps({
             "crs": sc.site.crs_code,
             "method": {str(s): str(m) for s, m in zip(ds.sea.values, ds.sea_method.values)},
+            "method_reason": {str(s): str(m) for s, m in zip(ds.sea.values,
+                                                            ds.sea_method_reason.values)},
             "rows": rows,
             "warnings": [{"code": n.code, "text": n.text, "sea": n.sea, "point": n.point,
                           "level": n.level} for n in items],
-            "cautions": caution_text()}, indent=2))
+            "cautions": " ".join(result_cautions(ds))}, indent=2))
         return 0
     cols = list(POINTS_COLUMNS) + (["period_ratio"] if has_random else []) + list(VERDICT_COLUMNS)
     import csv

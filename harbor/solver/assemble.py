@@ -653,6 +653,8 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
     ds = ds.assign(wall_variables(scenario.layout, scenario.reflection))
     ds.attrs["scenario_crs_is_lonlat"] = int(bool(site.is_lonlat))
     ds.attrs["full_field"] = int(any(m == agitation.METHOD_FULL_FIELD for m in methods))
+    ds.attrs["cautions"] = caution_text(screening=any_screening or not methods,
+                                        full_field=bool(ds.attrs["full_field"]))
     return with_crs(ds, site.work_crs, site.work_to_lonlat)
 
 
