@@ -39,8 +39,9 @@ REASONS = {
     "forced": "asked for with --method {m}",
     "bathymetry": "auto: the depth varies over the harbour (a survey is given), which the "
                   "screening methods, at one constant depth, cannot represent",
-    "reflection": "auto: reflection coefficients are given for the harbour's boundaries, "
-                  "whose reflection the screening methods leave out",
+    "reflection": "auto: reflection coefficients are given for the harbour's boundaries; "
+                  "the screening methods leave reflection from land out and take every "
+                  "arm as a fully reflecting wall",
     "validity": "auto: {what} outside the screening methods' measured validity ({codes})",
     "screening": "auto: the screening methods are inside their measured validity here",
     "too-large": "auto: the full-field method is needed ({why}) but too large for this "
@@ -205,7 +206,8 @@ def choose_method(scenario, sea, method=None, point_xy=None, wet_xy=None, model=
     Notes
     -----
     ``auto`` takes the full-field method when the harbour has a depth survey, when
-    reflection coefficients are given for its boundaries, or when a finding of the
+    reflection coefficients are given for any arm or land (even 1: the screening
+    methods neglect reflection from land altogether), or when a finding of the
     screening methods' accuracy table (:func:`harbor.solver.accuracy.invalid_mask`:
     overlapping heads, bends near heads, grazing or oblique heads, short detached
     breakwaters, narrow misaligned entrances) covers a point or more than
@@ -227,7 +229,7 @@ def choose_method(scenario, sea, method=None, point_xy=None, wet_xy=None, model=
     reasons = []
     if has_survey(scenario):
         reasons.append(("bathymetry", REASONS["bathymetry"]))
-    if any(np.any(np.asarray(v, float) < 1.0) for v in scenario.reflection.values()):
+    if scenario.reflection:
         reasons.append(("reflection", REASONS["reflection"]))
     if not reasons:
         found, bad_p, bad_g = _validity_findings(scenario, sea, wet_xy, point_xy)

@@ -91,6 +91,19 @@ def read_bathymetry(r, table, scenario_path, site, crs_code, layout, points):
     def bad(problem, key="file"):
         return r.err(f"{name}: {problem}", where, key)
 
+    try:
+        return _read(r, where, name, path, ext, sign, swl, given_crs, variable, site,
+                     crs_code, layout, points, bad)
+    except InputError as e:
+        if e.file and e.file != (scenario_path or None) and not e.where:
+            # a problem of the survey file itself: name the scenario, the key and the file
+            raise r.err(f"{name}: {e.problem}", where, "file") from None
+        raise
+
+
+def _read(r, where, name, path, ext, sign, swl, given_crs, variable, site, crs_code,
+          layout, points, bad):
+    file = str(path)
     if ext in _RASTER:
         check_file(path, "bathymetry raster")
         if ext in (".tif", ".tiff"):
