@@ -190,7 +190,7 @@ def plan(scenario, sea=None, method="auto", grid=True):
                                     wet_xy=wet_xy, model=model)
         if c.full_field and c.estimate is None:
             c = dataclasses.replace(c, estimate=agitation.estimate(
-                model, agitation.sea_periods(s)))
+                model, agitation.sea_periods(s), random=s.kind == "random"))
         out.append((s, c))
     return out
 
