@@ -421,3 +421,19 @@ def test_bundled_demo_is_a_full_field_harbour(full_demo_scenario):
     planned = harbor.solver.assemble.plan(sc)
     assert [c.full_field for _, c in planned] == [True, True, True]
     assert all(c.estimate["memory"] < 8 * 2**30 for _, c in planned)
+
+
+def test_sweep_runs_the_full_field_method_and_says_so(tmp_path):
+    # a narrowing entrance with reflecting walls: each head position is one full-field
+    # solve; a narrower gap lets less energy in (energy flux through the aperture)
+    pts = [(f"b{i}", X0 + x, Y0 + y) for i, (x, y) in
+           enumerate([(-60, 40), (-20, 70), (20, 30), (60, 90), (0, 100)])]
+    sc = load_scenario(_write(tmp_path, _cove(extra_land="reflection = 0.1", points=pts,
+                                              head_gap=80.0)))
+    from harbor.study.sweep import sweep
+
+    res = sweep(sc, "east", [0.0, 30.0])
+    assert all(str(m) == METHOD_FULL_FIELD for m in res.method.values.ravel())
+    assert float(res.entrance_width.values[1]) == pytest.approx(50.0, abs=0.5)
+    e = (res.kd.values[:, 0, :] ** 2).mean(axis=1)
+    assert e[1] < e[0]
