@@ -36,6 +36,10 @@ def main(argv=None):
     ap.add_argument("--nfreq", type=int, default=12)
     ap.add_argument("--ndir", type=int, default=36)
     ap.add_argument("--old", action="store_true", help="also time today's solver")
+    ap.add_argument("--survey", action="store_true",
+                    help="the scenario's survey, reflection and footprints "
+                         "(harbor.solver.agitation.model_for) instead of constant depth "
+                         "and rigid walls")
     ap.add_argument("--cap", type=float, default=None,
                     help="max_unknowns of the random sea (default: the engine's)")
     a = ap.parse_args(argv)
@@ -45,16 +49,47 @@ def main(argv=None):
     pts = np.array([p.at for p in sc.points])
     sea = next(s for s in sc.seas if s.kind == "regular")
     alpha = float(np.degrees(site.travel_angle(sea.from_deg)))
+
+    def make():
+        if a.survey:
+            from harbor.solver.agitation import model_for
+
+            X, Y = np.meshgrid(gx, gy)
+            return model_for(sc, points=np.concatenate(
+                [pts, np.column_stack([X.ravel(), Y.ravel()])]))
+        return HarbourModel(sc.layout, site.depth, points=pts, grid=(gx, gy), g=site.g)
+
+    if a.survey:  # the model works in the ground frame
+        from harbor.solver.assemble import ground_scenario
+
+        alpha = float(np.degrees(ground_scenario(sc).site.travel_angle(sea.from_deg)))
     t0 = time.perf_counter()
-    model = HarbourModel(sc.layout, site.depth, points=pts, grid=(gx, gy), g=site.g)
+    model = make()
     r = model.regular(sea.period, alpha)
     t1 = time.perf_counter()
     i = r.info
-    print(f"regular sea '{sea.name}' T = {sea.period:g} s over the {gy.size} x {gx.size} grid")
+    print(f"regular sea '{sea.name}' T = {sea.period:g} s over the {gy.size} x {gx.size} grid"
+          + (" (survey, reflection)" if a.survey else ""))
     print(f"  new engine: {i['unknowns']} unknowns, {i['triangles']} triangles; mesh "
           f"{i['mesh_s']:.1f} s, assemble {i['assemble_s']:.1f} s, factor "
           f"{i['factor_s']:.1f} s; total {t1 - t0:.1f} s; peak memory {peak_mb():.0f} MB")
-    print("  K' at points:", np.round(np.abs(r.points), 3))
+    print("  K' at points:", np.round(np.abs(r.points[:len(pts)]), 3))
+    # locating the grid in the mesh, side by side: every miss searched exactly (the
+    # previous code) against misses on land skipped (the water polygon known)
+    wm = model._setup(sea.period).solver.space.mesh
+    if a.survey:
+        E = model.points - model.origin
+        X, Y = E[:, :1], E[:, 1:]
+    else:
+        X, Y = np.meshgrid(gx - model.origin[0], gy - model.origin[1])
+    for label, water in (("previous (all misses exact)", None), ("now (land skipped)", wm.water)):
+        keep = wm.water
+        wm.water, wm._finder = water, None
+        t6 = time.perf_counter()
+        cells = wm.locate(X.ravel(), Y.ravel())
+        print(f"  locate {X.size} grid points, {label}: {time.perf_counter() - t6:.2f} s, "
+              f"{int((cells >= 0).sum())} in the water")
+        wm.water = keep
     print("  notices:", [n.code for n in model.notices])
     if a.old:
         from harbor.solver.accuracy import field_method_solve
@@ -73,7 +108,7 @@ def main(argv=None):
         rs = sc.sea(a.random)
         comp = random_components(rs.height, rs.period, rs.spreading, n_freq=a.nfreq,
                                  n_dir=a.ndir)
-        model2 = HarbourModel(sc.layout, site.depth, points=pts, grid=(gx, gy), g=site.g)
+        model2 = make()
         kw = {} if a.cap is None else {"max_unknowns": int(a.cap) if a.cap > 0 else None}
         est = model2.estimate(1.0 / np.unique(comp.frequency), n_directions=a.ndir,
                               **({"max_unknowns": model2.random.__defaults__[1]} | kw))
@@ -85,15 +120,20 @@ def main(argv=None):
             print(f"    band {done}/{total}: {time.perf_counter() - t4:.0f} s, "
                   f"peak {peak_mb():.0f} MB", flush=True)
 
-        res = model2.random(comp, float(np.degrees(site.travel_angle(rs.from_deg))),
+        tsite = site
+        if a.survey:
+            from harbor.solver.assemble import ground_scenario
+
+            tsite = ground_scenario(sc).site
+        res = model2.random(comp, float(np.degrees(tsite.travel_angle(rs.from_deg))),
                             progress=prog, **kw)
         t5 = time.perf_counter()
         nb = res.info["bands"]
         print(f"random sea '{rs.name}' ({a.nfreq} x {a.ndir}): {t5 - t4:.0f} s; largest "
               f"band {max(b['unknowns'] for b in nb)} unknowns; peak memory "
               f"{peak_mb():.0f} MB")
-        print("  K_eff at points:", np.round(res.kd_points, 3))
-        print("  T_m02 ratio at points:", np.round(res.ratio_points, 3))
+        print("  K_eff at points:", np.round(res.kd_points[:len(pts)], 3))
+        print("  T_m02 ratio at points:", np.round(res.ratio_points[:len(pts)], 3))
         print("  notices:", [str(n) for n in model2.notices])
 
 

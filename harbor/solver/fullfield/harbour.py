@@ -804,7 +804,7 @@ class HarbourModel:
                 break
         return hi
 
-    def estimate(self, periods, n_directions=1, max_unknowns=None):
+    def estimate(self, periods, n_directions=1, max_unknowns=None, merge_capped=True):
         r"""Unknowns, memory and seconds of solving some wave periods, without solving.
 
         Parameters
@@ -817,6 +817,9 @@ class HarbourModel:
         max_unknowns : int, optional
             Cap of :meth:`random`: a period whose mesh would need more unknowns is
             solved at the shortest period that fits (reported in ``solve_periods``).
+        merge_capped : bool, optional
+            As in :meth:`random`: the capped periods share the back-substitutions of
+            one of them (counted once).
 
         Returns
         -------
@@ -858,6 +861,13 @@ class HarbourModel:
         peak = (_EST_BASE_BYTES + _EST_PEAK_PER_FACTOR * fbytes
                 + _EST_BYTES_PER_UNKNOWN * n)
         sec_setup = _EST_SECONDS_PER_UNKNOWN * n + _EST_FACTOR_SECONDS * n ** 1.5
+        ndir = ndir.copy()
+        if merge_capped and capped.sum() > 1:
+            # the capped bands share one set of directions (those of one band)
+            first_capped = np.flatnonzero(capped)[0]
+            keep = ndir[capped].max()
+            ndir[capped] = 0.0
+            ndir[first_capped] = keep
         sec_solve = _EST_SOLVE_SECONDS_PER_NNZ * fill * ndir
         # one factorisation per distinct solve period
         _, first = np.unique(np.round(solve_T, 9), return_index=True)

@@ -39,6 +39,8 @@ class WaterMesh:
         The same triangles over ``vertices`` (used to locate points).
     slit_edges : numpy.ndarray, shape (m, 2, 2)
         The slit edges as coordinate pairs (m).
+    water : shapely geometry, optional
+        The water polygon that was meshed (m): points outside it are not searched.
     """
 
     points: np.ndarray
@@ -47,6 +49,7 @@ class WaterMesh:
     vtriangles: np.ndarray
     slit_edges: np.ndarray
 
+    water: object = None
     _finder: object = None
 
     def locate(self, x, y):
@@ -59,7 +62,30 @@ class WaterMesh:
         V, T = self.vertices, self.vtriangles
         if self._finder is None:
             self._finder = cKDTree(V[T].mean(axis=1))
-        k = min(12, len(T))
+        todo = np.arange(x.size)
+        # nearest centroids first; the few points whose triangle is not among them
+        # (beside large graded triangles) try more candidates before the exact search
+        for k in (12, 64):
+            if todo.size == 0:
+                break
+            k = min(k, len(T))
+            hit, cell = self._candidates(x[todo], y[todo], k)
+            out[todo[hit]] = cell[hit]
+            todo = todo[~hit]
+        if todo.size and self.water is not None:
+            # most misses are on land: only points in the water need the exact search
+            wet = shapely.intersects_xy(self.water, x[todo], y[todo])
+            todo = todo[wet]
+        if todo.size:  # rare: exact search for those points
+            from matplotlib.tri import Triangulation
+
+            f = Triangulation(V[:, 0], V[:, 1], T).get_trifinder()
+            out[todo] = np.asarray(f(x[todo], y[todo]))
+        return out
+
+    def _candidates(self, x, y, k):
+        """Among the k nearest triangle centroids, the one containing each point."""
+        V, T = self.vertices, self.vtriangles
         _, cand = self._finder.query(np.column_stack([x, y]), k)
         cand = cand.reshape(x.size, -1)
         a, b, c = V[T[cand, 0]], V[T[cand, 1]], V[T[cand, 2]]
@@ -71,14 +97,8 @@ class WaterMesh:
         tol = 1e-10
         ok = (l1 >= -tol) & (l2 >= -tol) & (1 - l1 - l2 >= -tol)
         hit = ok.any(axis=1)
-        out[hit] = cand[hit, np.argmax(ok[hit], axis=1)]
-        miss = np.flatnonzero(~hit)
-        if miss.size:  # rare (large graded triangles): exact search for those points
-            from matplotlib.tri import Triangulation
-
-            f = Triangulation(V[:, 0], V[:, 1], T).get_trifinder()
-            out[miss] = np.asarray(f(x[miss], y[miss]))
-        return out
+        cell = np.where(hit, cand[np.arange(x.size), np.argmax(ok, axis=1)], -1)
+        return hit, cell
 
 
 def _densify(coords, size):
@@ -229,5 +249,6 @@ def build(water, slits, size, max_rounds=6):
     else:
         points, triangles = V.T.copy(), T.T.copy()
     return WaterMesh(points=points, triangles=triangles, vertices=V, vtriangles=T,
+                     water=water,
                      slit_edges=np.stack([V[slit[:, 0]], V[slit[:, 1]]], axis=1)
                      if len(slit) else np.zeros((0, 2, 2)))
