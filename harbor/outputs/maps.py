@@ -29,12 +29,15 @@ from harbor.outputs._atomic import atomic_path
 # Re-exported: these names were defined here before the module was split.
 from harbor.outputs.cartography import (_HALO, _bleed, _drop_specks, _land_hatch,  # noqa: F401
                                         _north_arrow, _polygon_patch, _scale_bar, busy_mask,
-                                        fit_axes_rect, open_sea_mask, true_north_vector)
+                                        depth_field, depth_handle, draw_depth_contours,
+                                        draw_walls, fit_axes_rect, open_sea_mask,
+                                        true_north_vector, wall_lines)
 from harbor.outputs.labels import (FLAG_COLOUR, _overlap, draw_point_table,  # noqa: F401
                                    draw_points)
 from harbor.outputs.read import (arm_mask, cell_size, crs_label, layout_shapes,  # noqa: F401
                                  point_rows, sea_info, sea_name, title_lines, warning_lines)
-from harbor.outputs.style import (A4_LANDSCAPE, ARM_COLOUR, CMAP, INK, KD_FILL,  # noqa: F401
+from harbor.outputs.style import (A4_LANDSCAPE, ARM_COLOUR, CMAP, DEPTH_COLOUR, INK,  # noqa: F401
+                                  KD_FILL,
                                   KD_LINES, LAND_EDGE, LAND_FACE, LAND_HATCH,
                                   LAND_HATCH_STYLE, MUTED, OK_COLOUR, OVER_COLOUR,
                                   SCALE_STEPS, compass, fill_levels, height_symbol,
@@ -45,28 +48,35 @@ from harbor.outputs.style import (A4_LANDSCAPE, ARM_COLOUR, CMAP, INK, KD_FILL, 
 INVALID_HATCH = "xx"
 #: Least distance (inches on paper) between two labels of the same isoline level.
 LABEL_SPACING_IN = 1.6
+#: The same for depth contours, which are context and labelled more sparingly.
+DEPTH_LABEL_SPACING_IN = 3.2
+#: Words that name the full-field method in a result's ``sea_method``.
+FULL_FIELD_WORDS = ("full-field", "full field", "mild-slope", "mild slope")
 
 
-def _declutter_labels(ax, cs, fmt, fontsize):
-    """Label the isolines sparsely: at most one label per level within
-    :data:`LABEL_SPACING_IN` on paper, and none overlapping another label.
+def _declutter_labels(ax, cs, fmt, fontsize, spacing_in=LABEL_SPACING_IN, avoid=(),
+                      every_level=True, colour=None):
+    """Label the isolines sparsely: at most one label per level within ``spacing_in``
+    inches on paper, and none overlapping another label or a box in ``avoid``.
 
     matplotlib places a label on every piece of every line; in a cluttered basin that is
     dozens of "0.1"/"0.2" labels. The automatic positions are computed once, thinned, and
-    the kept ones are placed again inline (cartographic generalisation only).
+    the kept ones are placed again inline (cartographic generalisation only). With
+    ``every_level`` each level keeps at least one label even where labels are crowded.
     """
-    trial = ax.clabel(cs, inline=False, fontsize=fontsize, fmt=fmt)
+    kw = {} if colour is None else {"colors": colour}
+    trial = ax.clabel(cs, inline=False, fontsize=fontsize, fmt=fmt, **kw)
     if not trial:
         return []
     fig = ax.figure
     renderer = fig.canvas.get_renderer()
-    kept, boxes, spots = [], [], []
+    kept, boxes, spots = [], list(avoid), []
     for t in trial:
         xy = np.asarray(t.get_position(), float)
         pos_in = ax.transData.transform(xy) / fig.dpi
         bb = t.get_window_extent(renderer).padded(2)
         same = [p for p, txt in spots if txt == t.get_text() and p is not None]
-        if any(np.hypot(*(pos_in - p)) < LABEL_SPACING_IN for p in same):
+        if any(np.hypot(*(pos_in - p)) < spacing_in for p in same):
             continue
         if any(_overlap(bb, o) > 0 for o in boxes):
             continue
@@ -74,7 +84,7 @@ def _declutter_labels(ax, cs, fmt, fontsize):
         boxes.append(bb)
         spots.append((pos_in, t.get_text()))
     # every level keeps at least one label, even where labels are crowded
-    for t in trial:
+    for t in trial if every_level else ():
         if t.get_text() not in {txt for _, txt in spots}:
             kept.append(tuple(np.asarray(t.get_position(), float)))
             spots.append((None, t.get_text()))
@@ -86,7 +96,65 @@ def _declutter_labels(ax, cs, fmt, fontsize):
     if not kept:
         return []
     return ax.clabel(cs, inline=True, fontsize=fontsize, fmt=fmt, inline_spacing=3,
-                     manual=kept)
+                     manual=kept, **kw)
+
+
+def method_reason(result, sea) -> str:
+    """Why the method of sea state ``sea`` was used, as the result says (``sea_method_reason``).
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+    sea : str
+        Sea state name.
+
+    Returns
+    -------
+    str
+        The sentence, or "" when the result carries none (older results).
+    """
+    if "sea_method_reason" not in result:
+        return ""
+    v = result["sea_method_reason"].sel(sea=sea).values
+    v = v.item() if hasattr(v, "item") else v
+    text = "" if v is None else str(v).strip()
+    return "" if text.lower() in ("", "nan", "none") else text
+
+
+def reflection_shown(result, sea) -> bool:
+    """Whether the map of ``sea`` draws the boundaries by reflection coefficient.
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+    sea : str
+        Sea state name.
+
+    Returns
+    -------
+    bool
+        True when the result carries walls (``wall_reflection``) and the sea state was
+        solved by the full-field method: its ``sea_method`` names it, or the result's
+        ``full_field`` attribute is 1 and no sea state's method name says which.
+
+    Notes
+    -----
+    Only the full-field method uses the reflection coefficients; the screening methods
+    treat every arm as a rigid wall and the land as a shore that takes the wave, so on
+    their maps the K_r classes would describe a model that was not solved.
+    """
+    if "wall_reflection" not in result or result.sizes.get("wall", 0) == 0:
+        return False
+    methods = ([str(m).lower() for m in result["sea_method"].values]
+               if "sea_method" in result else [])
+    named = [any(w in m for w in FULL_FIELD_WORDS) for m in methods]
+    if any(named):
+        names = [str(s) for s in result["sea"].values]
+        return bool(named[names.index(str(sea))])
+    try:
+        return int(result.attrs.get("full_field", 0) or 0) == 1
+    except (TypeError, ValueError):
+        return False
 
 
 def _tick_locators(ax, fig):
@@ -145,7 +213,8 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
     shapes = layout_shapes(result)
     h = cell_size(x, y)
 
-    ax, denom = fit_axes_rect(fig, box, xlim, ylim, scale, halign, valign)
+    scale_factor = float(result.attrs.get("scale_factor", 1.0) or 1.0)
+    ax, denom = fit_axes_rect(fig, box, xlim, ylim, scale, halign, valign, scale_factor)
     ax.set_facecolor("#f2f2f2")
     fill, lines, open_top = fill_levels(field, show, info["height"])
     wet = np.isfinite(field)
@@ -154,6 +223,8 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
     extend = "max" if open_top else "neither"
     norm = mcolors.BoundaryNorm(fill, cmap.N, extend=extend)
     cf = ax.contourf(x, y, field, levels=fill, cmap=cmap, norm=norm, extend=extend, zorder=1)
+    depth = depth_field(result)
+    depth_cs = None if depth is None else draw_depth_contours(ax, x, y, depth, 2.5 * h)
 
     # Isoline colour: white over the dark end of the map, near-black over the light end.
     def ink_for(level):
@@ -177,8 +248,20 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
 
         def fmt(v):
             return f"{v:.{dec}f} m"
-    for t in _declutter_labels(ax, cs, fmt, 7):
+    kd_labels = _declutter_labels(ax, cs, fmt, 7)
+    for t in kd_labels:
         t.set_zorder(3)
+    depth_labels = []
+    if depth_cs is not None:
+        renderer = fig.canvas.get_renderer()
+        taken = [t.get_window_extent(renderer).padded(3) for t in kd_labels]
+        depth_labels = _declutter_labels(ax, depth_cs, lambda v: f"{v:g} m", 6,
+                                         DEPTH_LABEL_SPACING_IN, taken, every_level=False,
+                                         colour=DEPTH_COLOUR)
+        for t in depth_labels:
+            t.set_zorder(3)
+            t.set_path_effects([patheffects.withStroke(linewidth=1.6, foreground="white",
+                                                       alpha=0.7)])
 
     handles = []
     if "valid" in result:
@@ -223,6 +306,10 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
         handles.append(Line2D([], [], ls="", marker="o", markersize=7,
                               markerfacecolor=ARM_COLOUR, markeredgecolor="white",
                               markeredgewidth=1.4, label="diffracting head"))
+    if reflection_shown(result, name):
+        handles.extend(draw_walls(ax, wall_lines(result)))
+    if depth_cs is not None:
+        handles.append(depth_handle())
 
     ax.set_xlim(*xlim)
     ax.set_ylim(*ylim)
@@ -236,7 +323,7 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
         lab.set_va("center")
 
     obstacles = [_north_arrow(fig, ax, float(result.attrs.get("convergence_deg", 0.0) or 0.0)),
-                 _scale_bar(fig, ax, result.attrs.get("scale_factor", 1.0))]
+                 _scale_bar(fig, ax, result.attrs.get("scale_factor", 1.0)), *depth_labels]
     handles.extend(draw_points(fig, ax, result, name, info, obstacles, label_fontsize))
     return {"ax": ax, "mappable": cf, "label": cbar_label, "scale": denom, "info": info,
             "levels": fill, "extend": extend, "handles": handles, "name": name,
@@ -336,6 +423,9 @@ def sheltering_map(result, sea, path, show="kd", dpi=170):
     title_line = "\n".join(title_rows)
     extra = (len(title_rows) - 1) * title_size * 1.2 / 72.0
     method_lines = wrap_to(method, fw - 2 * margin, 8.5)[:2]
+    reason = method_reason(result, name)
+    if reason:
+        method_lines += wrap_to(f"Why this method: {reason}", fw - 2 * margin, 8.5)[:2]
     head_h = 0.80 + extra + len(method_lines) * 8.5 * 1.25 / 72.0 + 0.1
 
     side_w = 3.3  # key, point table and warnings

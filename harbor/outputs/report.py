@@ -13,6 +13,7 @@ import numpy as np
 from matplotlib.lines import Line2D
 
 from harbor.cautions import CAUTIONS
+from harbor.outputs.maps import method_reason
 from harbor.outputs.read import point_rows, sea_info, sea_name, verdict
 from harbor.outputs.sheet import DOCUMENT_STATUS, _frame, sheet_pages, text_pages, write_pdf
 from harbor.outputs.style import INK, MUTED, OK_COLOUR, OVER_COLOUR, new_figure, wrap_to
@@ -62,6 +63,9 @@ def _cover_pages(result, seas):
                         f"{ts} {inf['period']:.1f} s, from {inf['from']:.0f}\u00b0 true"
                         + (f", s_max {inf['spreading']:.0f}" if inf["random"] else "")
                         + f" \u2014 {inf['method']}")
+                reason = method_reason(result, inf["name"])
+                if reason:
+                    line += f" (why: {reason})"
                 for ln in wrap_to(line, right - left - 0.6, 7.5):
                     put(ln, 7.5)
                     y -= 0.15
