@@ -19,6 +19,7 @@ import pyproj
 
 from harbor.cautions import CAUTION_SHORT, CAUTIONS
 from harbor.outputs._atomic import atomic_path, staging_dir, unique_slugs, write_text_atomic
+from harbor.outputs.style import method_reason
 from harbor.outputs.read import (arm_mask, coordinate_digits, point_rows, sea_info, sea_name,
                                  verdict, warning_lines)
 
@@ -341,18 +342,20 @@ def point_records(result):
         ``kd``, ``height`` (m), ``period_ratio`` (None for regular seas), ``limit`` (m or
         None), ``ok`` (height <= limit; None without a limit), ``valid`` (False where
         the value is outside its method's measured validity), ``flags`` (codes of the
-        warnings behind ``valid`` False), ``method``.
+        warnings behind ``valid`` False), ``method``, ``method_reason`` (why that method,
+        from ``sea_method_reason``; "" when the result has none).
     """
     out = []
     for name in [str(s) for s in result["sea"].values]:
         method = sea_info(result, name)["method"]
+        reason = method_reason(result, name)
         for r in point_rows(result, name):
             pr = r["period_ratio"]
             out.append(dict(sea=name, point=r["name"], x=r["x_crs"], y=r["y_crs"], kd=r["kd"],
                             height=r["height"],
                             period_ratio=None if not np.isfinite(pr) else pr,
                             limit=r["limit"], ok=r["ok"], valid=r["valid"], flags=r["flags"],
-                            method=method))
+                            method=method, method_reason=reason))
     return out
 
 

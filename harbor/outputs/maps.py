@@ -42,7 +42,7 @@ from harbor.outputs.style import (A4_LANDSCAPE, ARM_COLOUR, CMAP, DEPTH_COLOUR, 
                                   LAND_HATCH_STYLE, MUTED, OK_COLOUR, OVER_COLOUR,
                                   SCALE_STEPS, compass, fill_levels, height_symbol,
                                   new_figure, nice_below, nice_step, quantity, round_number,
-                                  sea_label, standard_scale, wrap_to)
+                                  method_reason, sea_label, standard_scale, wrap_to)
 
 #: Hatch over the areas where the method is outside its measured validity (``~valid``).
 INVALID_HATCH = "xx"
@@ -97,28 +97,6 @@ def _declutter_labels(ax, cs, fmt, fontsize, spacing_in=LABEL_SPACING_IN, avoid=
         return []
     return ax.clabel(cs, inline=True, fontsize=fontsize, fmt=fmt, inline_spacing=3,
                      manual=kept, **kw)
-
-
-def method_reason(result, sea) -> str:
-    """Why the method of sea state ``sea`` was used, as the result says (``sea_method_reason``).
-
-    Parameters
-    ----------
-    result : xarray.Dataset
-    sea : str
-        Sea state name.
-
-    Returns
-    -------
-    str
-        The sentence, or "" when the result carries none (older results).
-    """
-    if "sea_method_reason" not in result:
-        return ""
-    v = result["sea_method_reason"].sel(sea=sea).values
-    v = v.item() if hasattr(v, "item") else v
-    text = "" if v is None else str(v).strip()
-    return "" if text.lower() in ("", "nan", "none") else text
 
 
 def reflection_shown(result, sea) -> bool:
@@ -195,13 +173,19 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
     dict
         ``ax``, ``mappable`` (for the colour bar), ``label`` (colour-bar label),
         ``scale`` (printed scale denominator), ``info`` (sea attributes), ``levels``,
-        ``extend``, ``handles`` (legend entries), ``name`` (sea state) and ``points``
-        (:func:`point_rows`, for :func:`draw_point_table`).
+        ``extend``, ``handles`` (legend entries), ``name`` (sea state), ``points``
+        (:func:`point_rows`, for :func:`draw_point_table`) and ``depth_contours`` (the
+        depth contour set, None without a varying ``depth``).
 
     Notes
     -----
     Areas where ``valid`` is False (the method is outside its measured validity there)
-    are cross-hatched and outlined in orange, and listed in the key.
+    are cross-hatched and outlined in orange, and listed in the key. When the result
+    holds a varying ``depth`` (y, x), light dashed depth contours (m below still water,
+    labelled sparingly) lie over the colour fill and under the K' isolines; when the sea
+    state was solved by the full-field method, every ``wall_*`` boundary is drawn by its
+    reflection class (:func:`harbor.outputs.cartography.draw_walls`), each class present
+    with its K_r range in the key. A result without these variables draws as before.
     """
     name = sea_name(result, sea)
     info = sea_info(result, name)
@@ -327,7 +311,7 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
     handles.extend(draw_points(fig, ax, result, name, info, obstacles, label_fontsize))
     return {"ax": ax, "mappable": cf, "label": cbar_label, "scale": denom, "info": info,
             "levels": fill, "extend": extend, "handles": handles, "name": name,
-            "points": point_rows(result, name)}
+            "points": point_rows(result, name), "depth_contours": depth_cs}
 
 
 def draw_colorbar(fig, drawn, rect=None, orientation="vertical"):

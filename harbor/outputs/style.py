@@ -275,3 +275,25 @@ def round_number(value: float, mantissas=(1.0, 2.0, 5.0), up: bool = True) -> fl
             if m * 10 ** e <= v * (1 + 1e-9):
                 return m * 10 ** e
     return ms[-1] * 10 ** (exp - 1)
+
+
+def method_reason(result, sea) -> str:
+    """Why the method of sea state ``sea`` was used, as the result says (``sea_method_reason``).
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+    sea : str
+        Sea state name.
+
+    Returns
+    -------
+    str
+        The sentence, or "" when the result carries none (older results).
+    """
+    if "sea_method_reason" not in result:
+        return ""
+    v = result["sea_method_reason"].sel(sea=sea).values
+    v = v.item() if hasattr(v, "item") else v
+    text = "" if v is None else str(v).strip()
+    return "" if text.lower() in ("", "nan", "none") else text
