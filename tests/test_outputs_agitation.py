@@ -264,6 +264,24 @@ def test_point_records_carry_the_method_and_its_reason(solved):
     assert {x["method_reason"] for x in export.point_records(solved)} == {""}
 
 
+def test_gis_files_carry_the_reason(solved, tmp_path):
+    # read back by outside readers: the json module (RFC 7946 file) and GDAL's pyogrio
+    from harbor.outputs.gis import write_geopackage
+
+    r = full_field(solved)
+    doc = json.loads(export.write_geojson_isolines(r, 0, tmp_path / "iso.geojson")
+                     .read_text())
+    assert doc["harbor"]["method"] == FF_METHOD
+    assert doc["harbor"]["method_reason"] == REASON
+    plain = json.loads(export.write_geojson_isolines(solved, 0, tmp_path / "p.geojson")
+                       .read_text())
+    assert "method_reason" not in plain["harbor"]
+    raw = pytest.importorskip("pyogrio.raw")
+    meta, _, _, values = raw.read(write_geopackage(r, tmp_path / "h.gpkg"), layer="points")
+    f = dict(zip(meta["fields"], values))
+    assert set(f["method"]) == {FF_METHOD} and set(f["method_reason"]) == {REASON}
+
+
 # ----------------------------------------------------------------- ground print scale
 
 def test_web_mercator_scale_factor_is_the_secant_of_latitude(solved):

@@ -366,6 +366,14 @@ def depth_field(result):
     return d
 
 
+def depth_range_text(result) -> str:
+    """``depths 1.5-18.0 m over the map`` for a result with a varying depth, else ""."""
+    d = depth_field(result)
+    if d is None:
+        return ""
+    return f"depths {np.nanmin(d):.1f}\u2013{np.nanmax(d):.1f} m over the map"
+
+
 def depth_levels(depth, target: int = 6) -> np.ndarray:
     """Round depths (m) for the contours of a depth grid: about ``target`` levels.
 

@@ -29,7 +29,8 @@ from harbor.outputs._atomic import atomic_path
 # Re-exported: these names were defined here before the module was split.
 from harbor.outputs.cartography import (_HALO, _bleed, _drop_specks, _land_hatch,  # noqa: F401
                                         _north_arrow, _polygon_patch, _scale_bar, busy_mask,
-                                        depth_field, depth_handle, draw_depth_contours,
+                                        depth_field, depth_handle, depth_range_text,
+                                        draw_depth_contours,
                                         draw_walls, fit_axes_rect, open_sea_mask,
                                         true_north_vector, wall_lines)
 from harbor.outputs.labels import (FLAG_COLOUR, _overlap, draw_point_table,  # noqa: F401
@@ -243,7 +244,9 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
                                          DEPTH_LABEL_SPACING_IN, taken, every_level=False,
                                          colour=DEPTH_COLOUR)
         for t in depth_labels:
+            # italic, as soundings on a chart, so that "5 m" never reads as a height
             t.set_zorder(3)
+            t.set_fontstyle("italic")
             t.set_path_effects([patheffects.withStroke(linewidth=1.6, foreground="white",
                                                        alpha=0.7)])
 
@@ -406,6 +409,8 @@ def sheltering_map(result, sea, path, show="kd", dpi=170):
     title_rows = wrap_to(title, fw - 2 * margin, title_size)[:2]
     title_line = "\n".join(title_rows)
     extra = (len(title_rows) - 1) * title_size * 1.2 / 72.0
+    if depth_range_text(result):
+        method += f"; {depth_range_text(result)}"
     method_lines = wrap_to(method, fw - 2 * margin, 8.5)[:2]
     reason = method_reason(result, name)
     if reason:

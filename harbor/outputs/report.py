@@ -13,6 +13,7 @@ import numpy as np
 from matplotlib.lines import Line2D
 
 from harbor.cautions import CAUTIONS
+from harbor.outputs.cartography import depth_range_text
 from harbor.outputs.maps import method_reason
 from harbor.outputs.read import point_rows, sea_info, sea_name, verdict
 from harbor.outputs.sheet import DOCUMENT_STATUS, _frame, sheet_pages, text_pages, write_pdf
@@ -53,7 +54,9 @@ def _cover_pages(result, seas):
             put(f"Scenario file: {result.attrs.get('scenario', '') or '(built in code)'}   "
                 f"\u00b7   computed {result.attrs.get('created', '')} with harbor "
                 f"{result.attrs.get('harbor_version', '')}   \u00b7   depth "
-                f"{result.attrs.get('depth', '')} m", 7.5, MUTED)
+                f"{result.attrs.get('depth', '')} m"
+                + (f" ({depth_range_text(result)})" if depth_range_text(result) else ""),
+                7.5, MUTED)
             y -= 0.3
             put("Sea states and methods", 10, weight="bold")
             y -= 0.22
