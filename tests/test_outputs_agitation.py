@@ -282,6 +282,21 @@ def test_gis_files_carry_the_reason(solved, tmp_path):
     assert set(f["method"]) == {FF_METHOD} and set(f["method_reason"]) == {REASON}
 
 
+def test_grid_nc_alone_redraws_contours_walls_and_reason(solved, tmp_path):
+    # grid.nc keeps the new variables: read back by xarray/netCDF4, the map needs
+    # nothing else to draw the depth contours and the boundary classes, and to say why
+    import xarray as xr
+
+    path = export.write_netcdf(full_field(solved), tmp_path / "grid.nc")
+    with xr.open_dataset(path) as back:
+        back.load()
+    assert maps.method_reason(back, "swell N") == REASON
+    fig, drawn = _draw(back)
+    assert drawn["depth_contours"] is not None
+    assert set(_class_entries(drawn)) == {"fully reflecting", "partly reflecting",
+                                          "absorbing"}
+
+
 # ----------------------------------------------------------------- ground print scale
 
 def test_web_mercator_scale_factor_is_the_secant_of_latitude(solved):
