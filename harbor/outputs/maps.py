@@ -236,10 +236,14 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
     kd_labels = _declutter_labels(ax, cs, fmt, 7)
     for t in kd_labels:
         t.set_zorder(3)
+    # the north arrow and the scale bar sit in fixed corners (inches from the frame):
+    # drawn now so that the depth labels can keep clear of them
+    obstacles = [_north_arrow(fig, ax, float(result.attrs.get("convergence_deg", 0.0) or 0.0)),
+                 _scale_bar(fig, ax, result.attrs.get("scale_factor", 1.0))]
     depth_labels = []
     if depth_cs is not None:
         renderer = fig.canvas.get_renderer()
-        taken = [t.get_window_extent(renderer).padded(3) for t in kd_labels]
+        taken = [t.get_window_extent(renderer).padded(3) for t in [*kd_labels, *obstacles]]
         depth_labels = _declutter_labels(ax, depth_cs, lambda v: f"{v:g} m", 6,
                                          DEPTH_LABEL_SPACING_IN, taken, every_level=False,
                                          colour=DEPTH_COLOUR)
@@ -309,8 +313,7 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
         lab.set_rotation(90)
         lab.set_va("center")
 
-    obstacles = [_north_arrow(fig, ax, float(result.attrs.get("convergence_deg", 0.0) or 0.0)),
-                 _scale_bar(fig, ax, result.attrs.get("scale_factor", 1.0)), *depth_labels]
+    obstacles += depth_labels
     handles.extend(draw_points(fig, ax, result, name, info, obstacles, label_fontsize))
     return {"ax": ax, "mappable": cf, "label": cbar_label, "scale": denom, "info": info,
             "levels": fill, "extend": extend, "handles": handles, "name": name,
