@@ -423,18 +423,53 @@ def draw_depth_contours(ax, x, y, depth, min_size):
     Notes
     -----
     Thin dashed lines with a faint white halo, above the colour fill and below the K'
-    isolines (zorder 1.6): they give the bathymetry without hiding the field. The
-    depth is drawn as the result holds it (nothing is interpolated beyond the grid).
+    isolines (zorder 1.6): they give the bathymetry without hiding the field. A
+    surveyed channel edge that runs obliquely across the grid steps from node to node;
+    the contours are drawn from the depth smoothed over about one grid cell (a
+    Gaussian of sigma = 1 cell, normalised over the wet nodes), so they run smoothly
+    and stay within about a cell of the isobath (cartographic generalisation: the
+    result's depths are not changed, and nothing is drawn beyond the wet nodes).
     """
     levels = depth_levels(depth)
     if levels.size == 0:
         return None
-    cs = ax.contour(x, y, depth, levels=levels, colors=[DEPTH_COLOUR],
+    smooth = _smooth(depth)
+    # A dredged basin or channel is a plateau at a round depth: contoured at exactly
+    # that value the line wanders through the rounding noise of the plateau. Such a
+    # level is drawn a hair deeper (2 % of the step), on the plateau's edge; it keeps
+    # its round name (see :func:`depth_label`).
+    step = float(np.diff(levels).min()) if levels.size > 1 else max(abs(levels[0]), 1.0)
+    wet = smooth[np.isfinite(smooth)]
+    drawn = np.array([v + 0.02 * step if np.mean(np.abs(wet - v) < 1e-3 * step) > 0.01
+                      else v for v in levels])
+    cs = ax.contour(x, y, smooth, levels=drawn, colors=[DEPTH_COLOUR],
                     linewidths=DEPTH_LINEWIDTH, linestyles=[DEPTH_DASHES], zorder=1.6)
     cs.set_path_effects([patheffects.withStroke(linewidth=DEPTH_LINEWIDTH + 1.1,
                                                 foreground=DEPTH_HALO, alpha=0.45)])
     _drop_specks(cs, min_size)
+    cs.harbor_step = step
     return cs
+
+
+def depth_label(cs, value) -> str:
+    """The name of a drawn depth contour: its round depth in metres (``6 m``)."""
+    step = getattr(cs, "harbor_step", None)
+    if step:
+        value = round(float(value) / step) * step
+    return f"{round(float(value), 6):g} m"
+
+
+def _smooth(depth, sigma: float = 1.0) -> np.ndarray:
+    """Gaussian smoothing (sigma in cells) of a grid with NaN, normalised over the
+    finite nodes; NaN stays NaN."""
+    from scipy import ndimage
+
+    d = np.asarray(depth, float)
+    wet = np.isfinite(d)
+    num = ndimage.gaussian_filter(np.where(wet, d, 0.0), sigma, mode="constant")
+    den = ndimage.gaussian_filter(wet.astype(float), sigma, mode="constant")
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(wet & (den > 0), num / np.where(den > 0, den, 1.0), np.nan)
 
 
 def depth_handle():

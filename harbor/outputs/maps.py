@@ -29,7 +29,8 @@ from harbor.outputs._atomic import atomic_path
 # Re-exported: these names were defined here before the module was split.
 from harbor.outputs.cartography import (_HALO, _bleed, _drop_specks, _land_hatch,  # noqa: F401
                                         _north_arrow, _polygon_patch, _scale_bar, busy_mask,
-                                        depth_field, depth_handle, depth_range_text,
+                                        depth_field, depth_handle, depth_label,
+                                        depth_range_text,
                                         draw_depth_contours,
                                         draw_walls, fit_axes_rect, open_sea_mask,
                                         true_north_vector, wall_lines)
@@ -100,6 +101,21 @@ def _declutter_labels(ax, cs, fmt, fontsize, spacing_in=LABEL_SPACING_IN, avoid=
                      manual=kept, **kw)
 
 
+def _full_field_sea(result, sea) -> bool:
+    """Whether sea state ``sea`` was solved by the full-field method (see
+    :func:`reflection_shown`)."""
+    methods = ([str(m).lower() for m in result["sea_method"].values]
+               if "sea_method" in result else [])
+    named = [any(w in m for w in FULL_FIELD_WORDS) for m in methods]
+    if any(named):
+        names = [str(s) for s in result["sea"].values]
+        return bool(named[names.index(str(sea))])
+    try:
+        return int(result.attrs.get("full_field", 0) or 0) == 1
+    except (TypeError, ValueError):
+        return False
+
+
 def reflection_shown(result, sea) -> bool:
     """Whether the map of ``sea`` draws the boundaries by reflection coefficient.
 
@@ -124,16 +140,7 @@ def reflection_shown(result, sea) -> bool:
     """
     if "wall_reflection" not in result or result.sizes.get("wall", 0) == 0:
         return False
-    methods = ([str(m).lower() for m in result["sea_method"].values]
-               if "sea_method" in result else [])
-    named = [any(w in m for w in FULL_FIELD_WORDS) for m in methods]
-    if any(named):
-        names = [str(s) for s in result["sea"].values]
-        return bool(named[names.index(str(sea))])
-    try:
-        return int(result.attrs.get("full_field", 0) or 0) == 1
-    except (TypeError, ValueError):
-        return False
+    return _full_field_sea(result, sea)
 
 
 def _tick_locators(ax, fig):
@@ -218,11 +225,17 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
 
     line_colours = [ink_for(v) for v in lines]
     scale_h = 1.0 if show == "kd" else (info["height"] if np.isfinite(info["height"]) else 1.0)
-    busy = busy_mask(field, x, y, info["wavelength"], 0.6 * scale_h)
+    # A full-field basin holds partial standing waves everywhere (walls and quays
+    # reflect): K' swings by 0.3-0.5 within half a wavelength, and 0.1-step isolines
+    # there become nests of small loops. Its isolines are generalised harder (the
+    # colours still show every class; display only).
+    ff = _full_field_sea(result, name)
+    busy = busy_mask(field, x, y, info["wavelength"], (0.3 if ff else 0.6) * scale_h)
     open_sea = open_sea_mask(field, x, y, info["wavelength"], 1.0 * scale_h)
     line_field = np.where(arm_mask(result) | busy | open_sea, np.nan, field)
     cs = ax.contour(x, y, line_field, levels=lines, colors=line_colours, linewidths=0.7, zorder=2)
-    _drop_specks(cs, 2.5 * h)
+    L = info["wavelength"]
+    _drop_specks(cs, max(2.5 * h, 0.5 * L) if ff and np.isfinite(L) else 2.5 * h)
     if show == "kd":
         def fmt(v):
             return f"{v:.1f}" if abs(v * 10 - round(v * 10)) < 1e-6 else f"{v:.2f}"
@@ -244,7 +257,7 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
     if depth_cs is not None:
         renderer = fig.canvas.get_renderer()
         taken = [t.get_window_extent(renderer).padded(3) for t in [*kd_labels, *obstacles]]
-        depth_labels = _declutter_labels(ax, depth_cs, lambda v: f"{v:g} m", 6,
+        depth_labels = _declutter_labels(ax, depth_cs, lambda v: depth_label(depth_cs, v), 6,
                                          DEPTH_LABEL_SPACING_IN, taken, every_level=False,
                                          colour=DEPTH_COLOUR)
         for t in depth_labels:

@@ -278,7 +278,7 @@ def round_number(value: float, mantissas=(1.0, 2.0, 5.0), up: bool = True) -> fl
 
 
 def method_reason(result, sea) -> str:
-    """Why the method of sea state ``sea`` was used, as the result says (``sea_method_reason``).
+    """Why the method of sea state ``sea`` was used (the result's ``sea_method_reason``).
 
     Parameters
     ----------
