@@ -24,7 +24,7 @@ from matplotlib.lines import Line2D
 from matplotlib.patches import Patch
 from matplotlib.ticker import MaxNLocator
 
-from harbor.cautions import CAUTION_SHORT
+from harbor.cautions import CAUTION_SHORT  # noqa: F401  (re-exported)
 from harbor.outputs._atomic import atomic_path
 # Re-exported: these names were defined here before the module was split.
 from harbor.outputs.cartography import (_HALO, _bleed, _drop_specks, _land_hatch,  # noqa: F401
@@ -44,7 +44,8 @@ from harbor.outputs.style import (A4_LANDSCAPE, ARM_COLOUR, CMAP, DEPTH_COLOUR, 
                                   LAND_HATCH_STYLE, MUTED, OK_COLOUR, OVER_COLOUR,
                                   SCALE_STEPS, compass, fill_levels, height_symbol,
                                   new_figure, nice_below, nice_step, quantity, round_number,
-                                  method_reason, sea_label, standard_scale, wrap_to)
+                                  method_reason, result_short_caution, sea_label,
+                                  standard_scale, wrap_to)
 
 #: Hatch over the areas where the method is outside its measured validity (``~valid``).
 INVALID_HATCH = "xx"
@@ -412,7 +413,7 @@ def sheltering_map(result, sea, path, show="kd", dpi=170):
 
     n_warn = len({n.text for n in notices(result, sea=name, level="warning")})
 
-    foot_lines = wrap_to(CAUTION_SHORT, fw - 2 * margin, 7.5)
+    foot_lines = wrap_to(result_short_caution(result), fw - 2 * margin, 7.5)
     prov = (f"harbor {result.attrs.get('harbor_version', '')}  \u00b7  "
             f"{str(result.attrs.get('created', ''))[:19].replace('T', ' ')}  \u00b7  "
             f"scenario: {result.attrs.get('scenario', '') or '(built in code)'}")

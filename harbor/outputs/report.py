@@ -12,12 +12,12 @@ from __future__ import annotations
 import numpy as np
 from matplotlib.lines import Line2D
 
-from harbor.cautions import CAUTIONS
 from harbor.outputs.cartography import depth_range_text
 from harbor.outputs.maps import method_reason
 from harbor.outputs.read import point_rows, sea_info, sea_name, verdict
 from harbor.outputs.sheet import DOCUMENT_STATUS, _frame, sheet_pages, text_pages, write_pdf
-from harbor.outputs.style import INK, MUTED, OK_COLOUR, OVER_COLOUR, new_figure, wrap_to
+from harbor.outputs.style import (INK, MUTED, OK_COLOUR, OVER_COLOUR, new_figure,
+                                  result_cautions, wrap_to)
 from harbor.outputs.labels import FLAG_COLOUR
 
 REPORT_TYPE = "Preliminary harbour sheltering report"
@@ -169,5 +169,6 @@ def pdf_report(result, path, seas=None, show="kd", sheets=None):
     for name in names:
         listed += [f"Sea state '{name}': {n.text}" for n in items if n.sea == name]
     pages += text_pages("Validity warnings and notes", listed or ["None reported."], title)
-    pages += text_pages("Cautions", list(CAUTIONS), title, fontsize=9, columns=1)
+    pages += text_pages("Cautions", list(result_cautions(result)), title, fontsize=9,
+                        columns=1)
     return write_pdf(pages, path, title=f"{title} - {REPORT_TYPE}", subject=REPORT_TYPE)

@@ -14,13 +14,12 @@ from pathlib import Path
 
 from matplotlib.patches import Rectangle
 
-from harbor.cautions import CAUTIONS
 from harbor.outputs._atomic import atomic_path, slug
 from harbor.outputs.labels import draw_point_table
 from harbor.outputs.maps import draw_colorbar, draw_legend, draw_map, method_reason
 from harbor.outputs.read import crs_label, sea_info, sea_name, title_lines, warning_lines
-from harbor.outputs.style import (INK, MUTED, OVER_COLOUR, new_figure, sea_label,
-                                  standard_scale, wrap_to)
+from harbor.outputs.style import (INK, MUTED, OVER_COLOUR, new_figure, result_cautions,
+                                  sea_label, standard_scale, wrap_to)
 
 MM = 1.0 / 25.4  # inches per millimetre
 DOCUMENT_TYPE = "Preliminary sheltering map"
@@ -192,16 +191,17 @@ def sheet_pages(result, sea, sheet_number=1, sheet_count=1, show="kd"):
     room = y_notes - (bottom + tb_height + 0.15)
     # The cautions are printed in full whatever happens; the warnings get the rest and
     # continue on further pages.
-    caution_h = _block_height(list(CAUTIONS), side_w, 6.8)
+    cautions = result_cautions(result)
+    caution_h = _block_height(list(cautions), side_w, 6.8)
     size = 6.8
     while caution_h > room - 0.6 and size > 5.0:
         size -= 0.4
-        caution_h = _block_height(list(CAUTIONS), side_w, size)
+        caution_h = _block_height(list(cautions), side_w, size)
     used, rest = _text_block(fig, side_x, y_notes, side_w, room - caution_h - 0.12,
                              f"Validity warnings ({len(warns)})",
                              warns or ["None reported for this sea state."], fontsize=size)
     _text_block(fig, side_x, y_notes - used - 0.12, side_w, caution_h + 0.05, "Cautions",
-                list(CAUTIONS), fontsize=size)
+                list(cautions), fontsize=size)
 
     _title_block(fig, right - TB_WIDTH, bottom, result, info, scale,
                  sheet_number, sheet_count, name)
