@@ -505,7 +505,12 @@ def wall_lines(result) -> list:
         kr = float(kr)
         if not np.isfinite(kr):
             continue
-        geom = shapely.from_wkt(str(wkt))
+        try:
+            geom = shapely.from_wkt(str(wkt))
+        except shapely.errors.GEOSException:  # an unreadable boundary is not drawn
+            continue
+        if geom is None:
+            continue
         lines = [np.asarray(g.coords, float) for g in shapely.get_parts(geom)
                  if not g.is_empty and len(g.coords) >= 2]
         if lines:

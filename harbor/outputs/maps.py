@@ -53,8 +53,10 @@ INVALID_HATCH = "xx"
 LABEL_SPACING_IN = 1.6
 #: The same for depth contours, which are context and labelled more sparingly.
 DEPTH_LABEL_SPACING_IN = 3.2
-#: Words that name the full-field method in a result's ``sea_method``.
-FULL_FIELD_WORDS = ("full-field", "full field", "mild-slope", "mild slope")
+#: Words that name the full-field method in a result's ``sea_method`` (the mild-slope
+#: engine; the finite-element reference solver of the accuracy checks, named "full-field
+#: finite elements", takes every land edge as a rigid wall and is not meant).
+FULL_FIELD_WORDS = ("mild-slope", "mild slope")
 
 
 def _declutter_labels(ax, cs, fmt, fontsize, spacing_in=LABEL_SPACING_IN, avoid=(),
