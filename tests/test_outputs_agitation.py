@@ -266,6 +266,11 @@ def test_point_records_carry_the_method_and_its_reason(solved):
     assert {x["method_reason"] for x in export.point_records(solved)} == {""}
 
 
+def test_terminal_table_says_why(solved):
+    assert f"why this method: {REASON}" in export.point_table(full_field(solved))
+    assert "why this method" not in export.point_table(solved)
+
+
 def test_gis_files_carry_the_reason(solved, tmp_path):
     # read back by outside readers: the json module (RFC 7946 file) and GDAL's pyogrio
     from harbor.outputs.gis import write_geopackage

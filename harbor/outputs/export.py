@@ -440,6 +440,8 @@ def point_table(result) -> str:
                    f"{ts} {inf['period']:.1f} s, from {inf['from']:.0f} deg true"
                    + (f", s_max {inf['spreading']:.0f}" if inf["random"] else "")
                    + f" - {inf['method']}")
+        if method_reason(result, inf["name"]):
+            out.append(f"      why this method: {method_reason(result, inf['name'])}")
     rows = {s: point_rows(result, s) for s in seas}
     names = [r["name"] for r in rows[seas[0]]] if seas else []
     if not names:
