@@ -30,17 +30,15 @@ from harbor.outputs._atomic import atomic_path
 from harbor.outputs.cartography import (_HALO, _bleed, _drop_specks, _land_hatch,  # noqa: F401
                                         _north_arrow, _polygon_patch, _scale_bar, busy_mask,
                                         depth_field, depth_handle, depth_label,
-                                        depth_range_text,
-                                        draw_depth_contours,
-                                        draw_walls, fit_axes_rect, open_sea_mask,
-                                        true_north_vector, wall_lines)
+                                        depth_range_text, draw_depth_contours, draw_walls,
+                                        fit_axes_rect, open_sea_mask, true_north_vector,
+                                        wall_lines)
 from harbor.outputs.labels import (FLAG_COLOUR, _overlap, draw_point_table,  # noqa: F401
                                    draw_points)
 from harbor.outputs.read import (arm_mask, cell_size, crs_label, layout_shapes,  # noqa: F401
                                  point_rows, sea_info, sea_name, title_lines, warning_lines)
-from harbor.outputs.style import (A4_LANDSCAPE, ARM_COLOUR, CMAP, DEPTH_COLOUR, INK,  # noqa: F401
-                                  KD_FILL,
-                                  KD_LINES, LAND_EDGE, LAND_FACE, LAND_HATCH,
+from harbor.outputs.style import (A4_LANDSCAPE, ARM_COLOUR, CMAP, DEPTH_COLOUR,  # noqa: F401
+                                  INK, KD_FILL, KD_LINES, LAND_EDGE, LAND_FACE, LAND_HATCH,
                                   LAND_HATCH_STYLE, MUTED, OK_COLOUR, OVER_COLOUR,
                                   SCALE_STEPS, compass, fill_levels, height_symbol,
                                   new_figure, nice_below, nice_step, quantity, round_number,
