@@ -24,7 +24,7 @@ from matplotlib.lines import Line2D
 from matplotlib.patches import Patch
 from matplotlib.ticker import MaxNLocator
 
-from harbor.cautions import CAUTION_SHORT  # noqa: F401  (re-exported)
+from harbor.cautions import CAUTION_SHORT, result_short_caution  # noqa: F401
 from harbor.outputs._atomic import atomic_path
 # Re-exported: these names were defined here before the module was split.
 from harbor.outputs.cartography import (_HALO, _bleed, _drop_specks, _land_hatch,  # noqa: F401
@@ -42,8 +42,7 @@ from harbor.outputs.style import (A4_LANDSCAPE, ARM_COLOUR, CMAP, DEPTH_COLOUR, 
                                   LAND_HATCH_STYLE, MUTED, OK_COLOUR, OVER_COLOUR,
                                   SCALE_STEPS, compass, fill_levels, height_symbol,
                                   new_figure, nice_below, nice_step, quantity, round_number,
-                                  method_reason, result_short_caution, sea_label,
-                                  standard_scale, wrap_to)
+                                  method_reason, sea_label, standard_scale, wrap_to)
 
 #: Hatch over the areas where the method is outside its measured validity (``~valid``).
 INVALID_HATCH = "xx"

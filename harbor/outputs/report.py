@@ -12,12 +12,12 @@ from __future__ import annotations
 import numpy as np
 from matplotlib.lines import Line2D
 
+from harbor.cautions import result_cautions
 from harbor.outputs.cartography import depth_range_text
 from harbor.outputs.maps import method_reason
 from harbor.outputs.read import point_rows, sea_info, sea_name, verdict
 from harbor.outputs.sheet import DOCUMENT_STATUS, _frame, sheet_pages, text_pages, write_pdf
-from harbor.outputs.style import (INK, MUTED, OK_COLOUR, OVER_COLOUR, new_figure,
-                                  result_cautions, wrap_to)
+from harbor.outputs.style import INK, MUTED, OK_COLOUR, OVER_COLOUR, new_figure, wrap_to
 from harbor.outputs.labels import FLAG_COLOUR
 
 REPORT_TYPE = "Preliminary harbour sheltering report"

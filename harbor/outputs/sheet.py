@@ -14,12 +14,13 @@ from pathlib import Path
 
 from matplotlib.patches import Rectangle
 
+from harbor.cautions import result_cautions
 from harbor.outputs._atomic import atomic_path, slug
 from harbor.outputs.labels import draw_point_table
 from harbor.outputs.maps import draw_colorbar, draw_legend, draw_map, method_reason
 from harbor.outputs.read import crs_label, sea_info, sea_name, title_lines, warning_lines
-from harbor.outputs.style import (INK, MUTED, OVER_COLOUR, new_figure, result_cautions,
-                                  sea_label, standard_scale, wrap_to)
+from harbor.outputs.style import (INK, MUTED, OVER_COLOUR, new_figure, sea_label,
+                                  standard_scale, wrap_to)
 
 MM = 1.0 / 25.4  # inches per millimetre
 DOCUMENT_TYPE = "Preliminary sheltering map"

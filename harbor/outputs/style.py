@@ -297,31 +297,3 @@ def method_reason(result, sea) -> str:
     v = v.item() if hasattr(v, "item") else v
     text = "" if v is None else str(v).strip()
     return "" if text.lower() in ("", "nan", "none") else text
-
-
-def result_cautions(result) -> tuple:
-    """The cautions to print with a result, by the methods that produced it.
-
-    Parameters
-    ----------
-    result : xarray.Dataset
-
-    Returns
-    -------
-    tuple of str
-        :func:`harbor.cautions.result_cautions` where that exists (the screening and
-        the full-field methods have different cautions), else
-        :data:`harbor.cautions.CAUTIONS`.
-    """
-    from harbor import cautions
-
-    pick = getattr(cautions, "result_cautions", None)
-    return tuple(pick(result)) if pick is not None else tuple(cautions.CAUTIONS)
-
-
-def result_short_caution(result) -> str:
-    """The one-line caution of a result (see :func:`result_cautions`)."""
-    from harbor import cautions
-
-    pick = getattr(cautions, "result_short_caution", None)
-    return str(pick(result)) if pick is not None else cautions.CAUTION_SHORT
