@@ -190,7 +190,7 @@ def plan(scenario, sea=None, method="auto", grid=True):
                                     wet_xy=wet_xy, model=model)
         if c.full_field and c.estimate is None:
             c = dataclasses.replace(c, estimate=agitation.estimate(
-                model, agitation.sea_periods(s)))
+                model, agitation.sea_periods(s), random=s.kind == "random"))
         out.append((s, c))
     return out
 
@@ -557,6 +557,11 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
                 valid[i][wet] = ~bad[:nw]
                 pvalid[i] = ~bad[nw:]
             more += off
+        if choice.needed:
+            # the full-field method was needed here and not run: no value of this sea
+            # state is inside a measured validity
+            valid[i][:] = False
+            pvalid[i][:] = False
         for w in more:
             w = as_notice(w).for_sea(s.name)
             if w.code == "near-head" and w.point in pnames:
