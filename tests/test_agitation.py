@@ -383,3 +383,57 @@ def test_unknown_method_is_refused_with_the_choices(tmp_path, capsys):
     assert main(["check", str(p)]) == 2
     err = capsys.readouterr().err
     assert "full-field" in err and "key 'method'" in err
+
+
+def test_climate_with_reflecting_walls_goes_full_field_once_per_period(tmp_path, monkeypatch):
+    # short bands at a small mesh: the test is of the route, not of the band cap
+    monkeypatch.setattr("harbor.solver.agitation.BAND_CAP", 20_000)
+    # two directions of one (period, spreading): one task, one set of factorisations; the
+    # downtime is that of the random seas solved one by one (Goda 2010: K_eff does not
+    # depend on the height, so one solve per case at unit height)
+    body = _cove(extra_land="reflection = 0.2")
+    sc = load_scenario(_write(tmp_path, body))
+    clim = tmp_path / "clim.csv"
+    clim.write_text("height,period,from,percent\n1.0,12.0,0.0,40\n2.0,12.0,20.0,30\n"
+                    "1.5,12.0,0.0,30\n")
+    from harbor.study.climate import climate_downtime
+    from harbor.study.scenario import Sea
+
+    res = climate_downtime(sc, clim, workers=1)
+    assert any(m.startswith("full-field") for m in res.attrs["methods"])
+    one = harbor.solve(sc.__class__(**{**sc.__dict__, "seas": (
+        Sea("a", "random", 1.0, 12.0, 20.0, spreading=10.0),)}), grid=False)
+    assert str(one.sea_method.values[0]) == METHOD_FULL_FIELD
+    np.testing.assert_allclose(res.kd.values[1], one.point_kd.values[0], atol=1e-6)
+    np.testing.assert_allclose(res.point_height.values[:, 0],
+                               res.kd.values[:, 0] * np.array([1.0, 2.0, 1.5]), rtol=1e-12)
+
+
+def test_bundled_demo_is_a_full_field_harbour(full_demo_scenario):
+    # the demo ships with a survey (sloping shore, dredged basin and channel) and
+    # reflection coefficients (rubble mounds, a quay wall, a beach): every sea state is
+    # planned for the full-field method, within this machine's memory
+    sc = full_demo_scenario
+    assert sc.bathymetry is not None and sc.bathymetry.kind == "soundings"
+    x, y = sc.points[0].at
+    assert 4.5 < sc.bathymetry.depth(x, y) < 8.0          # the dredged basin + 1 m level
+    assert sc.reflection["west arm"] == 0.4 and len(sc.reflection["shore"]) == 6
+    planned = harbor.solver.assemble.plan(sc)
+    assert [c.full_field for _, c in planned] == [True, True, True]
+    assert all(c.estimate["memory"] < 8 * 2**30 for _, c in planned)
+
+
+def test_sweep_runs_the_full_field_method_and_says_so(tmp_path):
+    # a narrowing entrance with reflecting walls: each head position is one full-field
+    # solve; a narrower gap lets less energy in (energy flux through the aperture)
+    pts = [(f"b{i}", X0 + x, Y0 + y) for i, (x, y) in
+           enumerate([(-60, 40), (-20, 70), (20, 30), (60, 90), (0, 100)])]
+    sc = load_scenario(_write(tmp_path, _cove(extra_land="reflection = 0.1", points=pts,
+                                              head_gap=80.0)))
+    from harbor.study.sweep import sweep
+
+    res = sweep(sc, "east", [0.0, 30.0])
+    assert all(str(m) == METHOD_FULL_FIELD for m in res.method.values.ravel())
+    assert float(res.entrance_width.values[1]) == pytest.approx(50.0, abs=0.5)
+    e = (res.kd.values[:, 0, :] ** 2).mean(axis=1)
+    assert e[1] < e[0]

@@ -33,6 +33,19 @@ MAX_AUTO_UNKNOWNS = 3_000_000
 #: concerned.
 INVALID_GRID_SHARE = 0.05
 
+#: Largest mesh (unknowns) of one frequency band of a random sea; shorter bands are
+#: solved at the period that fits (:meth:`harbor.solver.fullfield.HarbourModel.random`).
+#: None: the engine's default.
+BAND_CAP = None
+
+
+def band_cap():
+    """The band cap in force (unknowns)."""
+    from harbor.solver.fullfield import harbour as _h
+
+    return BAND_CAP if BAND_CAP is not None else getattr(_h, "DEFAULT_MAX_UNKNOWNS", None)
+
+
 #: Reason sentences (one place, used by results, maps and ``check``).
 REASONS = {
     "named": "named in the scenario (method = \"{m}\")",
@@ -138,10 +151,8 @@ def estimate(model, periods, random=False, n_directions=1):
         ``seconds`` (all periods, this machine when quiet), ``periods``, ``capped``
         (number of bands solved at the capped period).
     """
-    from harbor.solver.fullfield import harbour as _h
-
     periods = [float(t) for t in np.atleast_1d(periods)]
-    cap = getattr(_h, "DEFAULT_MAX_UNKNOWNS", None) if random else None
+    cap = band_cap() if random else None
     e = model.estimate(periods, n_directions=n_directions, max_unknowns=cap)
     return {"unknowns": int(np.max(e.unknowns)), "memory": float(e.max_peak_bytes),
             "seconds": float(e.total_seconds), "periods": periods,
