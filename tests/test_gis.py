@@ -135,7 +135,7 @@ def test_geopackage_layers_and_attributes(run):
     meta, _, geoms, values = raw.read(path, layer="points")
     f = dict(zip(meta["fields"], values))
     assert list(meta["fields"]) == ["sea", "name", "kd", "height_m", "period_ratio",
-                                    "limit_m", "ok", "status"]
+                                    "limit_m", "ok", "status", "method", "method_reason"]
     pts = {p["name"]: p for p in scen["point"]}
     nc = xr.open_dataset(out / "grid.nc")
     for i, g in enumerate(shapely.from_wkb(geoms)):

@@ -294,8 +294,9 @@ def test_netcdf_without_points(case, tmp_path):
 def test_points_csv(run):
     sc, res, out, _ = run
     text = (out / "points.csv").read_text()
-    # the contract columns of DESIGN.md sect. 6 first, then the verdict columns
-    assert text.splitlines()[0] == "sea,point,x,y,kd,height,period_ratio,limit,ok,valid"
+    # the contract columns of DESIGN.md sect. 6 first, then the verdict columns, then
+    # the method of the sea state (issue 14: every output names it)
+    assert text.splitlines()[0] == "sea,point,x,y,kd,height,period_ratio,limit,ok,valid,method"
     rows = list(csv.DictReader(io.StringIO(text)))
     assert len(rows) == len(sc.seas) * len(sc.points)
     limits = {p.name: p.limit for p in sc.points}
@@ -311,6 +312,7 @@ def test_points_csv(run):
         assert (r["period_ratio"] == "") == (kind == "regular")
         at = next(p.at for p in sc.points if p.name == r["point"])
         assert float(r["x"]) == pytest.approx(at[0]) and float(r["y"]) == pytest.approx(at[1])
+        assert r["method"] == str(res["sea_method"].sel(sea=r["sea"]).values)
     # pandas reads it as a plain table with the same columns.
     import pandas as pd
 

@@ -14,7 +14,10 @@ from matplotlib.patches import Circle, Patch, PathPatch, Polygon as MplPolygon, 
 from matplotlib.path import Path as MplPath
 
 from harbor.outputs.read import cell_size
-from harbor.outputs.style import INK, LAND_HATCH, LAND_HATCH_STYLE, MUTED, nice_below
+from harbor.outputs.style import (DEPTH_COLOUR, DEPTH_DASHES, DEPTH_HALO, DEPTH_LINEWIDTH,
+                                  INK, LAND_HATCH, LAND_HATCH_STYLE, MUTED,
+                                  REFLECTION_CLASSES, nice_below, nice_step,
+                                  reflection_class, reflection_range)
 
 
 _HALO = [patheffects.withStroke(linewidth=3.0, foreground="white")]
@@ -29,7 +32,8 @@ def _land_hatch() -> dict:
     return dict(hatch=LAND_HATCH_STYLE, edgecolor=LAND_HATCH)
 
 
-def fit_axes_rect(fig, box, xlim, ylim, scale=None, halign="left", valign="top"):
+def fit_axes_rect(fig, box, xlim, ylim, scale=None, halign="left", valign="top",
+                  scale_factor=1.0):
     """Place an axes of equal aspect inside ``box`` (inches) and return it.
 
     Parameters
@@ -38,7 +42,7 @@ def fit_axes_rect(fig, box, xlim, ylim, scale=None, halign="left", valign="top")
     box : (left, bottom, width, height)
         Available region in inches from the figure's lower-left corner.
     xlim, ylim : (min, max)
-        Data extent in metres.
+        Data extent in work-frame (CRS) units.
     scale : float, optional
         If given, print at exactly 1:scale (metres of ground per metre of paper); the
         axes may then be smaller than ``box``. Otherwise the largest equal-aspect box.
@@ -46,18 +50,35 @@ def fit_axes_rect(fig, box, xlim, ylim, scale=None, halign="left", valign="top")
         Horizontal placement of the axes inside ``box``.
     valign : {"top", "center"}
         Vertical placement of the axes inside ``box``.
+    scale_factor : float
+        The result's ``scale_factor``: work-frame length per ground metre at the site
+        (1 for ground metres; about 1.41 for Web Mercator at 45 degrees of latitude).
 
     Returns
     -------
     (matplotlib.axes.Axes, float)
-        The axes (placed in ``box`` as asked) and the printed scale denominator.
+        The axes (placed in ``box`` as asked) and the printed scale denominator in
+        ground units (ground metres per metre of paper).
+
+    Notes
+    -----
+    With s the paper length per CRS unit, a ground distance d_g spans
+    d_crs = k d_g CRS units (k the scale factor) and s k d_g on paper, so the print
+    scale is 1:N with N = 1 / (s k). A projected CRS is conformal, so k is the same in
+    every direction at the site (Snyder 1987).
+
+    References
+    ----------
+    Snyder, J. P. (1987). Map Projections - A Working Manual. U.S. Geological Survey
+    Professional Paper 1395.
     """
+    k = float(scale_factor) if scale_factor and np.isfinite(float(scale_factor)) else 1.0
     left, bottom, width, height = box
     dx, dy = xlim[1] - xlim[0], ylim[1] - ylim[0]
     if scale is None:
-        s = min(width / dx, height / dy)  # inches per metre
+        s = min(width / dx, height / dy)  # inches per CRS unit
     else:
-        s = 39.37007874 / scale
+        s = 39.37007874 / (scale * k)
     w, h = dx * s, dy * s
     fw, fh = fig.get_size_inches()
     if halign == "center":
@@ -68,7 +89,7 @@ def fit_axes_rect(fig, box, xlim, ylim, scale=None, halign="left", valign="top")
     ax.set_xlim(*xlim)
     ax.set_ylim(*ylim)
     ax.set_aspect("equal", adjustable="box")
-    return ax, 1.0 / (s * 0.0254)
+    return ax, 1.0 / (s * 0.0254 * k)
 
 
 def _polygon_patch(poly, **kw):
@@ -311,3 +332,249 @@ def _bleed(field: np.ndarray, cells: int = 2) -> np.ndarray:
         mean = np.nansum(neigh, axis=0) / np.maximum(cnt, 1)
         f = np.where(nan & (cnt > 0), mean, f)
     return f
+
+
+# ------------------------------------------------------------ bathymetry and boundaries
+
+def depth_field(result):
+    """The still-water depth of a result at its grid nodes, when it varies.
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+        A result of :func:`harbor.solve`; the variable ``depth`` (y, x), m below still
+        water, NaN on land and arms, is optional (older results have none).
+
+    Returns
+    -------
+    numpy.ndarray (ny, nx) or None
+        None when the result has no ``depth`` grid, when its attribute ``constant`` is
+        1, or when it holds one value everywhere: a constant depth draws no contours.
+    """
+    if "depth" not in result.data_vars or set(result["depth"].dims) != {"y", "x"}:
+        return None
+    var = result["depth"]
+    try:
+        if int(var.attrs.get("constant", 0) or 0) == 1:
+            return None
+    except (TypeError, ValueError):
+        pass
+    d = np.asarray(var.transpose("y", "x").values, float)
+    fin = d[np.isfinite(d)]
+    if fin.size < 4 or float(fin.max() - fin.min()) <= 1e-6 * max(1.0, float(np.abs(fin).max())):
+        return None
+    return d
+
+
+def depth_range_text(result) -> str:
+    """``depths 1.5-18.0 m over the map`` for a result with a varying depth, else ""."""
+    d = depth_field(result)
+    if d is None:
+        return ""
+    return f"depths {np.nanmin(d):.1f}\u2013{np.nanmax(d):.1f} m over the map"
+
+
+def depth_levels(depth, target: int = 6) -> np.ndarray:
+    """Round depths (m) for the contours of a depth grid: about ``target`` levels.
+
+    Parameters
+    ----------
+    depth : numpy.ndarray
+        Depths, m; NaN ignored.
+    target : int
+        About how many contours to draw.
+
+    Returns
+    -------
+    numpy.ndarray
+        Levels strictly inside (min, max), at a round step (1, 2, 2.5 or 5 x 10^n m);
+        empty when the range is too small for one.
+    """
+    fin = np.asarray(depth, float)
+    fin = fin[np.isfinite(fin)]
+    if fin.size == 0:
+        return np.zeros(0)
+    lo, hi = float(fin.min()), float(fin.max())
+    step = nice_step(hi - lo, target)
+    first = step * math.floor(lo / step + 1.0 + 1e-9)
+    levels = np.round(np.arange(first, hi - 1e-9 * step, step), 10)
+    return levels[(levels > lo) & (levels < hi)]
+
+
+def draw_depth_contours(ax, x, y, depth, min_size):
+    """Draw light depth contours (the context under the K' isolines).
+
+    Parameters
+    ----------
+    ax : matplotlib.axes.Axes
+        The map axes (work frame).
+    x, y : numpy.ndarray
+        Node coordinates.
+    depth : numpy.ndarray (ny, nx)
+        Still-water depth, m (:func:`depth_field`).
+    min_size : float
+        Contour pieces smaller than this across (work-frame units) are left out.
+
+    Returns
+    -------
+    matplotlib.contour.QuadContourSet or None
+        None when no round depth lies inside the range.
+
+    Notes
+    -----
+    Thin dashed lines with a faint white halo, above the colour fill and below the K'
+    isolines (zorder 1.6): they give the bathymetry without hiding the field. A
+    surveyed channel edge that runs obliquely across the grid steps from node to node;
+    the contours are drawn from the depth smoothed over about one grid cell (a
+    Gaussian of sigma = 1 cell, normalised over the wet nodes), so they run smoothly
+    and stay within about a cell of the isobath (cartographic generalisation: the
+    result's depths are not changed, and nothing is drawn beyond the wet nodes).
+    """
+    levels = depth_levels(depth)
+    if levels.size == 0:
+        return None
+    smooth = _smooth(depth)
+    # A dredged basin or channel is a plateau at a round depth: contoured at exactly
+    # that value the line wanders through the rounding noise of the plateau. Such a
+    # level is drawn a hair deeper (2 % of the step), on the plateau's edge; it keeps
+    # its round name (see :func:`depth_label`).
+    step = float(np.diff(levels).min()) if levels.size > 1 else max(abs(levels[0]), 1.0)
+    wet = smooth[np.isfinite(smooth)]
+    drawn = np.array([v + 0.02 * step if np.mean(np.abs(wet - v) < 1e-3 * step) > 0.01
+                      else v for v in levels])
+    cs = ax.contour(x, y, smooth, levels=drawn, colors=[DEPTH_COLOUR],
+                    linewidths=DEPTH_LINEWIDTH, linestyles=[DEPTH_DASHES], zorder=1.6)
+    cs.set_path_effects([patheffects.withStroke(linewidth=DEPTH_LINEWIDTH + 1.1,
+                                                foreground=DEPTH_HALO, alpha=0.45)])
+    _drop_specks(cs, min_size)
+    cs.harbor_step = step
+    return cs
+
+
+def depth_label(cs, value) -> str:
+    """The name of a drawn depth contour: its round depth in metres (``6 m``)."""
+    step = getattr(cs, "harbor_step", None)
+    if step:
+        value = round(float(value) / step) * step
+    return f"{round(float(value), 6):g} m"
+
+
+def _smooth(depth, sigma: float = 1.0) -> np.ndarray:
+    """Gaussian smoothing (sigma in cells) of a grid with NaN, normalised over the
+    finite nodes; NaN stays NaN."""
+    from scipy import ndimage
+
+    d = np.asarray(depth, float)
+    wet = np.isfinite(d)
+    num = ndimage.gaussian_filter(np.where(wet, d, 0.0), sigma, mode="constant")
+    den = ndimage.gaussian_filter(wet.astype(float), sigma, mode="constant")
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(wet & (den > 0), num / np.where(den > 0, den, 1.0), np.nan)
+
+
+def depth_handle():
+    """The key entry of the depth contours."""
+    from matplotlib.lines import Line2D
+
+    return Line2D([], [], color=DEPTH_COLOUR, lw=DEPTH_LINEWIDTH + 0.2, ls=DEPTH_DASHES,
+                  label="depth contour (m below still water)")
+
+
+def wall_lines(result) -> list:
+    """The boundaries of a result with their reflection coefficients.
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+        A result carrying ``wall_wkt`` (LineString or MultiLineString WKT, work frame),
+        ``wall_reflection`` (K_r, 0-1) and ``wall_owner`` along dimension ``wall``.
+
+    Returns
+    -------
+    list of dict
+        ``owner`` (arm or land name), ``kr`` (float), ``lines`` (list of (n, 2) arrays);
+        empty when the result has no walls.
+    """
+    if "wall_wkt" not in result or "wall_reflection" not in result:
+        return []
+    owners = (result["wall_owner"].values if "wall_owner" in result
+              else [""] * result.sizes.get("wall", 0))
+    out = []
+    for wkt, kr, owner in zip(result["wall_wkt"].values, result["wall_reflection"].values,
+                              owners):
+        kr = float(kr)
+        if not np.isfinite(kr):
+            continue
+        try:
+            geom = shapely.from_wkt(str(wkt))
+        except shapely.errors.GEOSException:  # an unreadable boundary is not drawn
+            continue
+        if geom is None:
+            continue
+        lines = [np.asarray(g.coords, float) for g in shapely.get_parts(geom)
+                 if not g.is_empty and len(g.coords) >= 2]
+        if lines:
+            out.append({"owner": str(owner), "kr": kr, "lines": lines})
+    return out
+
+
+def _kr(v: float) -> str:
+    """K_r as printed: one decimal, two when the second is not zero (1.0, 0.95, 0.4)."""
+    return f"{v:.1f}" if abs(v * 10 - round(v * 10)) < 1e-6 else f"{v:.2f}"
+
+
+def _owners_text(walls) -> str:
+    """``west arm 0.45, basin quay 1.0`` (the first three, then how many more)."""
+    seen = list(dict.fromkeys((w["owner"], round(w["kr"], 2)) for w in walls))
+    parts = [f"{o} {_kr(k)}" if o else _kr(k) for o, k in seen[:3]]
+    if len(seen) > 3:
+        parts.append(f"+{len(seen) - 3} more")
+    return ", ".join(parts)
+
+
+def draw_walls(ax, walls, label_width=46):
+    """Draw each boundary with the line style of its reflection class.
+
+    Parameters
+    ----------
+    ax : matplotlib.axes.Axes
+        The map axes (work frame).
+    walls : list of dict
+        :func:`wall_lines`.
+    label_width : int
+        Characters per line of the key entries.
+
+    Returns
+    -------
+    list of matplotlib.lines.Line2D
+        One key entry per class present, with its K_r range and the boundaries in it.
+
+    Notes
+    -----
+    The classes are :data:`harbor.outputs.style.REFLECTION_CLASSES` (fully reflecting
+    K_r >= 0.9, partly reflecting 0.3-0.9, absorbing < 0.3). The line runs over the arm
+    or the land outline (zorder 7.4: above the arms, below the heads and the points),
+    with a white halo so that it reads on any K' colour.
+    """
+    import textwrap
+
+    from matplotlib.lines import Line2D
+
+    by_class = {}
+    for w in walls:
+        by_class.setdefault(reflection_class(w["kr"]), []).append(w)
+    handles = []
+    for i in sorted(by_class):
+        _, name, colour, dashes, lw, caps = REFLECTION_CLASSES[i]
+        halo = [patheffects.withStroke(linewidth=lw + 1.6, foreground="white", alpha=0.8)]
+        for w in by_class[i]:
+            for xy in w["lines"]:
+                ax.plot(xy[:, 0], xy[:, 1], color=colour, lw=lw, ls=dashes,
+                        solid_capstyle="butt", dash_capstyle=caps, zorder=7.4,
+                        path_effects=halo)
+        rng = reflection_range(i).replace("K_r", "$K_r$")
+        text = f"{name} boundary, {rng}"
+        owners = textwrap.wrap("here: " + _owners_text(by_class[i]), label_width)
+        handles.append(Line2D([], [], color=colour, lw=lw, ls=dashes, dash_capstyle=caps,
+                              label="\n".join([text, *owners]), path_effects=halo))
+    return handles

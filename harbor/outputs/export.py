@@ -19,14 +19,17 @@ import pyproj
 
 from harbor.cautions import result_cautions, result_short_caution
 from harbor.outputs._atomic import atomic_path, staging_dir, unique_slugs, write_text_atomic
+from harbor.outputs.style import method_reason
 from harbor.outputs.read import (arm_mask, coordinate_digits, point_rows, sea_info, sea_name,
                                  verdict, warning_lines)
 
 DEFAULT_LEVELS = tuple(float(v) for v in np.round(np.arange(0.1, 1.0001, 0.1), 10))
 #: Columns of points.csv: the contract columns of ``harbor points`` first
 #: (sea,point,x,y,kd,height,period_ratio), then the verdict columns; ``valid`` is false
-#: where the value is outside its method's measured validity (``point_valid``).
-CSV_COLUMNS = ("sea", "point", "x", "y", "kd", "height", "period_ratio", "limit", "ok", "valid")
+#: where the value is outside its method's measured validity (``point_valid``); last the
+#: method that gave the sea state (``sea_method``).
+CSV_COLUMNS = ("sea", "point", "x", "y", "kd", "height", "period_ratio", "limit", "ok", "valid",
+               "method")
 
 
 def _work_crs(result) -> pyproj.CRS:
@@ -115,7 +118,8 @@ def write_geojson_isolines(result, sea, path, levels=DEFAULT_LEVELS):
     feature's properties carry ``level``, ``quantity`` ("kd"), ``units`` ("1"),
     ``sea``, ``sea_kind``, ``method`` and ``caution``. A top-level foreign member
     ``harbor`` carries provenance, the levels requested and found, the validity warnings
-    and the full cautions.
+    and the full cautions (and ``method_reason``, why that method was used, when the
+    result says).
 
     References
     ----------
@@ -164,6 +168,8 @@ def write_geojson_isolines(result, sea, path, levels=DEFAULT_LEVELS):
                 "period_s": info["period"], "from_deg_true": info["from"],
                 **({"s_max": info["spreading"]} if info["random"] else {})},
         "method": info["method"],
+        **({"method_reason": method_reason(result, name)}
+           if method_reason(result, name) else {}),
         "work_crs": str(result.attrs.get("crs", "")),
         "levels_requested": [float(v) for v in levels],
         "levels_found": found,
@@ -341,18 +347,20 @@ def point_records(result):
         ``kd``, ``height`` (m), ``period_ratio`` (None for regular seas), ``limit`` (m or
         None), ``ok`` (height <= limit; None without a limit), ``valid`` (False where
         the value is outside its method's measured validity), ``flags`` (codes of the
-        warnings behind ``valid`` False), ``method``.
+        warnings behind ``valid`` False), ``method``, ``method_reason`` (why that method,
+        from ``sea_method_reason``; "" when the result has none).
     """
     out = []
     for name in [str(s) for s in result["sea"].values]:
         method = sea_info(result, name)["method"]
+        reason = method_reason(result, name)
         for r in point_rows(result, name):
             pr = r["period_ratio"]
             out.append(dict(sea=name, point=r["name"], x=r["x_crs"], y=r["y_crs"], kd=r["kd"],
                             height=r["height"],
                             period_ratio=None if not np.isfinite(pr) else pr,
                             limit=r["limit"], ok=r["ok"], valid=r["valid"], flags=r["flags"],
-                            method=method))
+                            method=method, method_reason=reason))
     return out
 
 
@@ -369,7 +377,7 @@ def points_csv_text(result) -> str:
     for r in point_records(result):
         w.writerow([r["sea"], r["point"], _fmt(r["x"], digits), _fmt(r["y"], digits),
                     _fmt(r["kd"], 4), _fmt(r["height"], 3), _fmt(r["period_ratio"], 4),
-                    _fmt(r["limit"], 3), _bool(r["ok"]), _bool(r["valid"])])
+                    _fmt(r["limit"], 3), _bool(r["ok"]), _bool(r["valid"]), r["method"]])
     return buf.getvalue()
 
 
@@ -389,7 +397,7 @@ def write_points_csv(result, path):
 
     Notes
     -----
-    Columns: ``sea,point,x,y,kd,height,period_ratio,limit,ok,valid``. x, y in the
+    Columns: ``sea,point,x,y,kd,height,period_ratio,limit,ok,valid,method``. x, y in the
     scenario's CRS (metres, 2 decimals; longitude and latitude, 8 decimals, for a
     geographic CRS however it is spelt); height in m (H or H1/3);
     ``period_ratio`` empty for regular seas; ``limit`` empty when none is given;
@@ -432,6 +440,8 @@ def point_table(result) -> str:
                    f"{ts} {inf['period']:.1f} s, from {inf['from']:.0f} deg true"
                    + (f", s_max {inf['spreading']:.0f}" if inf["random"] else "")
                    + f" - {inf['method']}")
+        if method_reason(result, inf["name"]):
+            out.append(f"      why this method: {method_reason(result, inf['name'])}")
     rows = {s: point_rows(result, s) for s in seas}
     names = [r["name"] for r in rows[seas[0]]] if seas else []
     if not names:

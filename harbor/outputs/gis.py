@@ -28,6 +28,7 @@ import shapely
 from harbor.cautions import result_cautions, result_short_caution
 from harbor.outputs._atomic import atomic_path, unique_slugs
 from harbor.outputs.read import arm_mask, layout_shapes
+from harbor.outputs.style import method_reason
 
 #: Value of the raster cells without a value (land, cells an arm crosses).
 NODATA = -9999.0
@@ -324,7 +325,8 @@ def write_geopackage(result, path, seas=None, levels=GPKG_LEVELS):
     - ``points`` (Point; one feature per sea state and point): ``sea``, ``name``,
       ``kd``, ``height_m``, ``period_ratio`` (random seas), ``limit_m`` (null without a
       limit), ``ok`` (height <= limit; null without a limit), ``status``
-      ("ok", "over" or "");
+      ("ok", "over" or ""), ``method`` and ``method_reason`` (why that method; ""
+      when the result does not say);
     - ``arms`` (LineString): ``name``, ``rooted_start``, ``rooted_end``;
     - ``land`` (Polygon): ``name``.
 
@@ -383,7 +385,8 @@ def write_geopackage(result, path, seas=None, levels=GPKG_LEVELS):
             lim = np.asarray(result["point_limit"].values, float) \
                 if "point_limit" in result else np.full(px.size, np.nan)
             geoms, rows = [], {k: [] for k in ("sea", "name", "kd", "height_m",
-                                                "period_ratio", "limit_m", "ok", "status")}
+                                                "period_ratio", "limit_m", "ok", "status",
+                                                "method", "method_reason")}
             for s in names:
                 r = result.sel(sea=s)
                 kd = np.asarray(r["point_kd"].values, float)
@@ -402,14 +405,16 @@ def write_geopackage(result, path, seas=None, levels=GPKG_LEVELS):
                     rows["limit_m"].append(lim[j])
                     rows["ok"].append((ok, not known))
                     rows["status"].append(("ok" if ok else "over") if known else "")
+                    rows["method"].append(method[s])
+                    rows["method_reason"].append(method_reason(result, s))
             fields = {k: np.array(v, dtype=object) for k, v in rows.items()
-                      if k in ("sea", "name", "status")}
+                      if k in ("sea", "name", "status", "method", "method_reason")}
             for k in ("kd", "height_m", "period_ratio", "limit_m"):
                 fields[k] = np.array(rows[k], float)
             fields["ok"] = (np.array([v for v, _ in rows["ok"]], bool),
                             np.array([m for _, m in rows["ok"]], bool))
             order = ["sea", "name", "kd", "height_m", "period_ratio", "limit_m", "ok",
-                     "status"]
+                     "status", "method", "method_reason"]
             _write_layer(tmp, "points", geoms, {k: fields[k] for k in order}, "Point",
                          crs, None if written else meta)
             written = True

@@ -24,49 +24,61 @@ from matplotlib.lines import Line2D
 from matplotlib.patches import Patch
 from matplotlib.ticker import MaxNLocator
 
-from harbor.cautions import CAUTION_SHORT
+from harbor.cautions import CAUTION_SHORT, result_short_caution  # noqa: F401
 from harbor.outputs._atomic import atomic_path
 # Re-exported: these names were defined here before the module was split.
 from harbor.outputs.cartography import (_HALO, _bleed, _drop_specks, _land_hatch,  # noqa: F401
                                         _north_arrow, _polygon_patch, _scale_bar, busy_mask,
-                                        fit_axes_rect, open_sea_mask, true_north_vector)
+                                        depth_field, depth_handle, depth_label,
+                                        depth_range_text, draw_depth_contours, draw_walls,
+                                        fit_axes_rect, open_sea_mask, true_north_vector,
+                                        wall_lines)
 from harbor.outputs.labels import (FLAG_COLOUR, _overlap, draw_point_table,  # noqa: F401
                                    draw_points)
 from harbor.outputs.read import (arm_mask, cell_size, crs_label, layout_shapes,  # noqa: F401
                                  point_rows, sea_info, sea_name, title_lines, warning_lines)
-from harbor.outputs.style import (A4_LANDSCAPE, ARM_COLOUR, CMAP, INK, KD_FILL,  # noqa: F401
-                                  KD_LINES, LAND_EDGE, LAND_FACE, LAND_HATCH,
+from harbor.outputs.style import (A4_LANDSCAPE, ARM_COLOUR, CMAP, DEPTH_COLOUR,  # noqa: F401
+                                  INK, KD_FILL, KD_LINES, LAND_EDGE, LAND_FACE, LAND_HATCH,
                                   LAND_HATCH_STYLE, MUTED, OK_COLOUR, OVER_COLOUR,
                                   SCALE_STEPS, compass, fill_levels, height_symbol,
                                   new_figure, nice_below, nice_step, quantity, round_number,
-                                  sea_label, standard_scale, wrap_to)
+                                  method_reason, sea_label, standard_scale, wrap_to)
 
 #: Hatch over the areas where the method is outside its measured validity (``~valid``).
 INVALID_HATCH = "xx"
 #: Least distance (inches on paper) between two labels of the same isoline level.
 LABEL_SPACING_IN = 1.6
+#: The same for depth contours, which are context and labelled more sparingly.
+DEPTH_LABEL_SPACING_IN = 3.2
+#: Words that name the full-field method in a result's ``sea_method`` (the mild-slope
+#: engine; the finite-element reference solver of the accuracy checks, named "full-field
+#: finite elements", takes every land edge as a rigid wall and is not meant).
+FULL_FIELD_WORDS = ("mild-slope", "mild slope")
 
 
-def _declutter_labels(ax, cs, fmt, fontsize):
-    """Label the isolines sparsely: at most one label per level within
-    :data:`LABEL_SPACING_IN` on paper, and none overlapping another label.
+def _declutter_labels(ax, cs, fmt, fontsize, spacing_in=LABEL_SPACING_IN, avoid=(),
+                      every_level=True, colour=None):
+    """Label the isolines sparsely: at most one label per level within ``spacing_in``
+    inches on paper, and none overlapping another label or a box in ``avoid``.
 
     matplotlib places a label on every piece of every line; in a cluttered basin that is
     dozens of "0.1"/"0.2" labels. The automatic positions are computed once, thinned, and
-    the kept ones are placed again inline (cartographic generalisation only).
+    the kept ones are placed again inline (cartographic generalisation only). With
+    ``every_level`` each level keeps at least one label even where labels are crowded.
     """
-    trial = ax.clabel(cs, inline=False, fontsize=fontsize, fmt=fmt)
+    kw = {} if colour is None else {"colors": colour}
+    trial = ax.clabel(cs, inline=False, fontsize=fontsize, fmt=fmt, **kw)
     if not trial:
         return []
     fig = ax.figure
     renderer = fig.canvas.get_renderer()
-    kept, boxes, spots = [], [], []
+    kept, boxes, spots = [], list(avoid), []
     for t in trial:
         xy = np.asarray(t.get_position(), float)
         pos_in = ax.transData.transform(xy) / fig.dpi
         bb = t.get_window_extent(renderer).padded(2)
         same = [p for p, txt in spots if txt == t.get_text() and p is not None]
-        if any(np.hypot(*(pos_in - p)) < LABEL_SPACING_IN for p in same):
+        if any(np.hypot(*(pos_in - p)) < spacing_in for p in same):
             continue
         if any(_overlap(bb, o) > 0 for o in boxes):
             continue
@@ -74,7 +86,7 @@ def _declutter_labels(ax, cs, fmt, fontsize):
         boxes.append(bb)
         spots.append((pos_in, t.get_text()))
     # every level keeps at least one label, even where labels are crowded
-    for t in trial:
+    for t in trial if every_level else ():
         if t.get_text() not in {txt for _, txt in spots}:
             kept.append(tuple(np.asarray(t.get_position(), float)))
             spots.append((None, t.get_text()))
@@ -86,7 +98,49 @@ def _declutter_labels(ax, cs, fmt, fontsize):
     if not kept:
         return []
     return ax.clabel(cs, inline=True, fontsize=fontsize, fmt=fmt, inline_spacing=3,
-                     manual=kept)
+                     manual=kept, **kw)
+
+
+def _full_field_sea(result, sea) -> bool:
+    """Whether sea state ``sea`` was solved by the full-field method (see
+    :func:`reflection_shown`)."""
+    methods = ([str(m).lower() for m in result["sea_method"].values]
+               if "sea_method" in result else [])
+    named = [any(w in m for w in FULL_FIELD_WORDS) for m in methods]
+    if any(named):
+        names = [str(s) for s in result["sea"].values]
+        return bool(named[names.index(str(sea))])
+    try:
+        return int(result.attrs.get("full_field", 0) or 0) == 1
+    except (TypeError, ValueError):
+        return False
+
+
+def reflection_shown(result, sea) -> bool:
+    """Whether the map of ``sea`` draws the boundaries by reflection coefficient.
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+    sea : str
+        Sea state name.
+
+    Returns
+    -------
+    bool
+        True when the result carries walls (``wall_reflection``) and the sea state was
+        solved by the full-field method: its ``sea_method`` names it, or the result's
+        ``full_field`` attribute is 1 and no sea state's method name says which.
+
+    Notes
+    -----
+    Only the full-field method uses the reflection coefficients; the screening methods
+    treat every arm as a rigid wall and the land as a shore that takes the wave, so on
+    their maps the K_r classes would describe a model that was not solved.
+    """
+    if "wall_reflection" not in result or result.sizes.get("wall", 0) == 0:
+        return False
+    return _full_field_sea(result, sea)
 
 
 def _tick_locators(ax, fig):
@@ -127,13 +181,19 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
     dict
         ``ax``, ``mappable`` (for the colour bar), ``label`` (colour-bar label),
         ``scale`` (printed scale denominator), ``info`` (sea attributes), ``levels``,
-        ``extend``, ``handles`` (legend entries), ``name`` (sea state) and ``points``
-        (:func:`point_rows`, for :func:`draw_point_table`).
+        ``extend``, ``handles`` (legend entries), ``name`` (sea state), ``points``
+        (:func:`point_rows`, for :func:`draw_point_table`) and ``depth_contours`` (the
+        depth contour set, None without a varying ``depth``).
 
     Notes
     -----
     Areas where ``valid`` is False (the method is outside its measured validity there)
-    are cross-hatched and outlined in orange, and listed in the key.
+    are cross-hatched and outlined in orange, and listed in the key. When the result
+    holds a varying ``depth`` (y, x), light dashed depth contours (m below still water,
+    labelled sparingly) lie over the colour fill and under the K' isolines; when the sea
+    state was solved by the full-field method, every ``wall_*`` boundary is drawn by its
+    reflection class (:func:`harbor.outputs.cartography.draw_walls`), each class present
+    with its K_r range in the key. A result without these variables draws as before.
     """
     name = sea_name(result, sea)
     info = sea_info(result, name)
@@ -145,7 +205,8 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
     shapes = layout_shapes(result)
     h = cell_size(x, y)
 
-    ax, denom = fit_axes_rect(fig, box, xlim, ylim, scale, halign, valign)
+    scale_factor = float(result.attrs.get("scale_factor", 1.0) or 1.0)
+    ax, denom = fit_axes_rect(fig, box, xlim, ylim, scale, halign, valign, scale_factor)
     ax.set_facecolor("#f2f2f2")
     fill, lines, open_top = fill_levels(field, show, info["height"])
     wet = np.isfinite(field)
@@ -154,6 +215,8 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
     extend = "max" if open_top else "neither"
     norm = mcolors.BoundaryNorm(fill, cmap.N, extend=extend)
     cf = ax.contourf(x, y, field, levels=fill, cmap=cmap, norm=norm, extend=extend, zorder=1)
+    depth = depth_field(result)
+    depth_cs = None if depth is None else draw_depth_contours(ax, x, y, depth, 2.5 * h)
 
     # Isoline colour: white over the dark end of the map, near-black over the light end.
     def ink_for(level):
@@ -162,11 +225,17 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
 
     line_colours = [ink_for(v) for v in lines]
     scale_h = 1.0 if show == "kd" else (info["height"] if np.isfinite(info["height"]) else 1.0)
-    busy = busy_mask(field, x, y, info["wavelength"], 0.6 * scale_h)
+    # A full-field basin holds partial standing waves everywhere (walls and quays
+    # reflect): K' swings by 0.3-0.5 within half a wavelength, and 0.1-step isolines
+    # there become nests of small loops. Its isolines are generalised harder (the
+    # colours still show every class; display only).
+    ff = _full_field_sea(result, name)
+    busy = busy_mask(field, x, y, info["wavelength"], (0.3 if ff else 0.6) * scale_h)
     open_sea = open_sea_mask(field, x, y, info["wavelength"], 1.0 * scale_h)
     line_field = np.where(arm_mask(result) | busy | open_sea, np.nan, field)
     cs = ax.contour(x, y, line_field, levels=lines, colors=line_colours, linewidths=0.7, zorder=2)
-    _drop_specks(cs, 2.5 * h)
+    L = info["wavelength"]
+    _drop_specks(cs, max(2.5 * h, 0.5 * L) if ff and np.isfinite(L) else 2.5 * h)
     if show == "kd":
         def fmt(v):
             return f"{v:.1f}" if abs(v * 10 - round(v * 10)) < 1e-6 else f"{v:.2f}"
@@ -177,8 +246,26 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
 
         def fmt(v):
             return f"{v:.{dec}f} m"
-    for t in _declutter_labels(ax, cs, fmt, 7):
+    kd_labels = _declutter_labels(ax, cs, fmt, 7)
+    for t in kd_labels:
         t.set_zorder(3)
+    # the north arrow and the scale bar sit in fixed corners (inches from the frame):
+    # drawn now so that the depth labels can keep clear of them
+    obstacles = [_north_arrow(fig, ax, float(result.attrs.get("convergence_deg", 0.0) or 0.0)),
+                 _scale_bar(fig, ax, result.attrs.get("scale_factor", 1.0))]
+    depth_labels = []
+    if depth_cs is not None:
+        renderer = fig.canvas.get_renderer()
+        taken = [t.get_window_extent(renderer).padded(3) for t in [*kd_labels, *obstacles]]
+        depth_labels = _declutter_labels(ax, depth_cs, lambda v: depth_label(depth_cs, v), 6,
+                                         DEPTH_LABEL_SPACING_IN, taken, every_level=False,
+                                         colour=DEPTH_COLOUR)
+        for t in depth_labels:
+            # italic, as soundings on a chart, so that "5 m" never reads as a height
+            t.set_zorder(3)
+            t.set_fontstyle("italic")
+            t.set_path_effects([patheffects.withStroke(linewidth=1.6, foreground="white",
+                                                       alpha=0.7)])
 
     handles = []
     if "valid" in result:
@@ -223,6 +310,10 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
         handles.append(Line2D([], [], ls="", marker="o", markersize=7,
                               markerfacecolor=ARM_COLOUR, markeredgecolor="white",
                               markeredgewidth=1.4, label="diffracting head"))
+    if reflection_shown(result, name):
+        handles.extend(draw_walls(ax, wall_lines(result)))
+    if depth_cs is not None:
+        handles.append(depth_handle())
 
     ax.set_xlim(*xlim)
     ax.set_ylim(*ylim)
@@ -235,12 +326,11 @@ def draw_map(fig, box, result, sea, show="kd", scale=None, label_fontsize=7.5,
         lab.set_rotation(90)
         lab.set_va("center")
 
-    obstacles = [_north_arrow(fig, ax, float(result.attrs.get("convergence_deg", 0.0) or 0.0)),
-                 _scale_bar(fig, ax, result.attrs.get("scale_factor", 1.0))]
+    obstacles += depth_labels
     handles.extend(draw_points(fig, ax, result, name, info, obstacles, label_fontsize))
     return {"ax": ax, "mappable": cf, "label": cbar_label, "scale": denom, "info": info,
             "levels": fill, "extend": extend, "handles": handles, "name": name,
-            "points": point_rows(result, name)}
+            "points": point_rows(result, name), "depth_contours": depth_cs}
 
 
 def draw_colorbar(fig, drawn, rect=None, orientation="vertical"):
@@ -322,7 +412,7 @@ def sheltering_map(result, sea, path, show="kd", dpi=170):
 
     n_warn = len({n.text for n in notices(result, sea=name, level="warning")})
 
-    foot_lines = wrap_to(CAUTION_SHORT, fw - 2 * margin, 7.5)
+    foot_lines = wrap_to(result_short_caution(result), fw - 2 * margin, 7.5)
     prov = (f"harbor {result.attrs.get('harbor_version', '')}  \u00b7  "
             f"{str(result.attrs.get('created', ''))[:19].replace('T', ' ')}  \u00b7  "
             f"scenario: {result.attrs.get('scenario', '') or '(built in code)'}")
@@ -335,7 +425,12 @@ def sheltering_map(result, sea, path, show="kd", dpi=170):
     title_rows = wrap_to(title, fw - 2 * margin, title_size)[:2]
     title_line = "\n".join(title_rows)
     extra = (len(title_rows) - 1) * title_size * 1.2 / 72.0
+    if depth_range_text(result):
+        method += f"; {depth_range_text(result)}"
     method_lines = wrap_to(method, fw - 2 * margin, 8.5)[:2]
+    reason = method_reason(result, name)
+    if reason:
+        method_lines += wrap_to(f"Why this method: {reason}", fw - 2 * margin, 8.5)[:2]
     head_h = 0.80 + extra + len(method_lines) * 8.5 * 1.25 / 72.0 + 0.1
 
     side_w = 3.3  # key, point table and warnings

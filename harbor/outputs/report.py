@@ -12,7 +12,9 @@ from __future__ import annotations
 import numpy as np
 from matplotlib.lines import Line2D
 
-from harbor.cautions import CAUTIONS
+from harbor.cautions import result_cautions
+from harbor.outputs.cartography import depth_range_text
+from harbor.outputs.maps import method_reason
 from harbor.outputs.read import point_rows, sea_info, sea_name, verdict
 from harbor.outputs.sheet import DOCUMENT_STATUS, _frame, sheet_pages, text_pages, write_pdf
 from harbor.outputs.style import INK, MUTED, OK_COLOUR, OVER_COLOUR, new_figure, wrap_to
@@ -52,7 +54,9 @@ def _cover_pages(result, seas):
             put(f"Scenario file: {result.attrs.get('scenario', '') or '(built in code)'}   "
                 f"\u00b7   computed {result.attrs.get('created', '')} with harbor "
                 f"{result.attrs.get('harbor_version', '')}   \u00b7   depth "
-                f"{result.attrs.get('depth', '')} m", 7.5, MUTED)
+                f"{result.attrs.get('depth', '')} m"
+                + (f" ({depth_range_text(result)})" if depth_range_text(result) else ""),
+                7.5, MUTED)
             y -= 0.3
             put("Sea states and methods", 10, weight="bold")
             y -= 0.22
@@ -62,6 +66,9 @@ def _cover_pages(result, seas):
                         f"{ts} {inf['period']:.1f} s, from {inf['from']:.0f}\u00b0 true"
                         + (f", s_max {inf['spreading']:.0f}" if inf["random"] else "")
                         + f" \u2014 {inf['method']}")
+                reason = method_reason(result, inf["name"])
+                if reason:
+                    line += f" (why: {reason})"
                 for ln in wrap_to(line, right - left - 0.6, 7.5):
                     put(ln, 7.5)
                     y -= 0.15
@@ -162,5 +169,6 @@ def pdf_report(result, path, seas=None, show="kd", sheets=None):
     for name in names:
         listed += [f"Sea state '{name}': {n.text}" for n in items if n.sea == name]
     pages += text_pages("Validity warnings and notes", listed or ["None reported."], title)
-    pages += text_pages("Cautions", list(CAUTIONS), title, fontsize=9, columns=1)
+    pages += text_pages("Cautions", list(result_cautions(result)), title, fontsize=9,
+                        columns=1)
     return write_pdf(pages, path, title=f"{title} - {REPORT_TYPE}", subject=REPORT_TYPE)

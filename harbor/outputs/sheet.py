@@ -14,10 +14,10 @@ from pathlib import Path
 
 from matplotlib.patches import Rectangle
 
-from harbor.cautions import CAUTIONS
+from harbor.cautions import result_cautions
 from harbor.outputs._atomic import atomic_path, slug
 from harbor.outputs.labels import draw_point_table
-from harbor.outputs.maps import draw_colorbar, draw_legend, draw_map
+from harbor.outputs.maps import draw_colorbar, draw_legend, draw_map, method_reason
 from harbor.outputs.read import crs_label, sea_info, sea_name, title_lines, warning_lines
 from harbor.outputs.style import (INK, MUTED, OVER_COLOUR, new_figure, sea_label,
                                   standard_scale, wrap_to)
@@ -163,7 +163,10 @@ def sheet_pages(result, sea, sheet_number=1, sheet_count=1, show="kd"):
                top - bottom - tb_height - 0.55 - 0.45)
     x = result["x"].values
     y = result["y"].values
-    dx, dy = float(x.max() - x.min()), float(y.max() - y.min())
+    # The printed 1:N is in ground metres: a CRS whose scale factor k is not 1 (Web
+    # Mercator: k = 1.41 at 45 degrees) holds k ground metres' worth of units per metre.
+    k = float(result.attrs.get("scale_factor", 1.0) or 1.0)
+    dx, dy = float(x.max() - x.min()) / k, float(y.max() - y.min()) / k
     min_n = max(dx / (map_box[2] * 0.0254), dy / (map_box[3] * 0.0254))
     scale = standard_scale(min_n)
     drawn = draw_map(fig, map_box, result, name, show=show, scale=scale,
@@ -189,16 +192,17 @@ def sheet_pages(result, sea, sheet_number=1, sheet_count=1, show="kd"):
     room = y_notes - (bottom + tb_height + 0.15)
     # The cautions are printed in full whatever happens; the warnings get the rest and
     # continue on further pages.
-    caution_h = _block_height(list(CAUTIONS), side_w, 6.8)
+    cautions = result_cautions(result)
+    caution_h = _block_height(list(cautions), side_w, 6.8)
     size = 6.8
     while caution_h > room - 0.6 and size > 5.0:
         size -= 0.4
-        caution_h = _block_height(list(CAUTIONS), side_w, size)
+        caution_h = _block_height(list(cautions), side_w, size)
     used, rest = _text_block(fig, side_x, y_notes, side_w, room - caution_h - 0.12,
                              f"Validity warnings ({len(warns)})",
                              warns or ["None reported for this sea state."], fontsize=size)
     _text_block(fig, side_x, y_notes - used - 0.12, side_w, caution_h + 0.05, "Cautions",
-                list(CAUTIONS), fontsize=size)
+                list(cautions), fontsize=size)
 
     _title_block(fig, right - TB_WIDTH, bottom, result, info, scale,
                  sheet_number, sheet_count, name)
@@ -211,8 +215,12 @@ def sheet_pages(result, sea, sheet_number=1, sheet_count=1, show="kd"):
             f"{float(result.attrs.get('convergence_deg', 0.0) or 0.0):+.3f}\u00b0 "
             "(north arrow shows true north)",
             f"Method: {info['method'] or result.attrs.get('method', '')}",
+            *([f"Why this method: {method_reason(result, name)}"]
+              if method_reason(result, name) else []),
             "Values are read from the computed result; distances can be measured at the "
-            "printed scale."]
+            "printed scale."
+            + (f" (ground metres; the CRS's scale factor {k:.4g} is taken out)"
+               if abs(k - 1.0) > 5e-4 else "")]
     _text_block(fig, left + 0.1, bottom + tb_height - 0.05, prov_w, tb_height - 0.1,
                 "Provenance", prov, fontsize=6.2, colour=MUTED, bullet="")
     pages = [fig]

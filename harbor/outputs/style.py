@@ -56,6 +56,70 @@ OVER_COLOUR = "#b3261e"
 A4_LANDSCAPE = (11.69, 8.27)  # inches
 
 
+# Depth contours are context, not the message: thin, dashed, a blue grey that reads on
+# both ends of cividis without competing with the K' isolines (solid, black or white).
+DEPTH_COLOUR = "#5b7f9e"
+DEPTH_HALO = "#ffffff"
+DEPTH_LINEWIDTH = 0.55
+DEPTH_DASHES = (0, (5.0, 2.5))
+
+# Boundaries by reflection coefficient K_r: our own symbology. A hue per class, and a
+# line pattern so that a grey-scale copy still tells them apart: solid for walls that
+# send the wave back, dashed for partial reflectors, dotted for absorbing edges.
+# (lower K_r bound of the class, label, colour, dash pattern, line width in pt, caps);
+# the absorbing class is a row of round dots, which reads even over the land outline.
+REFLECTION_CLASSES = (
+    (0.9, "fully reflecting", "#7b2d8e", "solid", 2.2, "butt"),
+    (0.3, "partly reflecting", "#d6589e", (0, (3.0, 1.6)), 2.2, "butt"),
+    (0.0, "absorbing", "#1f9a8a", (0, (0.05, 1.9)), 3.2, "round"),
+)
+
+
+def reflection_class(kr: float) -> int:
+    """Index in :data:`REFLECTION_CLASSES` of a reflection coefficient.
+
+    Parameters
+    ----------
+    kr : float
+        Reflection coefficient K_r (ratio of reflected to incident wave height, 0-1).
+
+    Returns
+    -------
+    int
+        0: fully reflecting (K_r >= 0.9), 1: partly reflecting (0.3 <= K_r < 0.9),
+        2: absorbing (K_r < 0.3).
+
+    Notes
+    -----
+    The bounds are our display classes, not a rule of the computation (which uses
+    each boundary's own K_r). They follow the usual grouping of coastal structures:
+    vertical walls and caissons reflect almost fully, rubble mounds partly, beaches
+    and absorbing slopes little (common practice; Goda 2010 tabulates
+    K_r 0.7-1.0 for vertical walls, 0.3-0.6 for rubble mounds, 0.05-0.2 for beaches,
+    from memory).
+
+    References
+    ----------
+    Goda, Y. (2010). Random Seas and Design of Maritime Structures, 3rd ed. World
+    Scientific, Singapore.
+    """
+    for i, (low, *_rest) in enumerate(REFLECTION_CLASSES):
+        if float(kr) >= low - 1e-9:
+            return i
+    return len(REFLECTION_CLASSES) - 1
+
+
+def reflection_range(index: int) -> str:
+    """The K_r range of a class as plain text, e.g. ``0.3 <= K_r < 0.9``."""
+    low = REFLECTION_CLASSES[index][0]
+    high = REFLECTION_CLASSES[index - 1][0] if index > 0 else None
+    if high is None:
+        return f"K_r \u2265 {low:g}"
+    if low <= 0:
+        return f"K_r < {high:g}"
+    return f"{low:g} \u2264 K_r < {high:g}"
+
+
 _COMPASS = ["N", "NNE", "NE", "ENE", "E", "ESE", "SE", "SSE",
             "S", "SSW", "SW", "WSW", "W", "WNW", "NW", "NNW"]
 
@@ -211,3 +275,25 @@ def round_number(value: float, mantissas=(1.0, 2.0, 5.0), up: bool = True) -> fl
             if m * 10 ** e <= v * (1 + 1e-9):
                 return m * 10 ** e
     return ms[-1] * 10 ** (exp - 1)
+
+
+def method_reason(result, sea) -> str:
+    """Why the method of sea state ``sea`` was used (the result's ``sea_method_reason``).
+
+    Parameters
+    ----------
+    result : xarray.Dataset
+    sea : str
+        Sea state name.
+
+    Returns
+    -------
+    str
+        The sentence, or "" when the result carries none (older results).
+    """
+    if "sea_method_reason" not in result:
+        return ""
+    v = result["sea_method_reason"].sel(sea=sea).values
+    v = v.item() if hasattr(v, "item") else v
+    text = "" if v is None else str(v).strip()
+    return "" if text.lower() in ("", "nan", "none") else text
