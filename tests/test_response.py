@@ -88,9 +88,10 @@ def test_helmholtz_mode_of_a_basin_behind_a_narrow_channel():
     # eq. for the Helmholtz mode; USACE Coastal Engineering Manual 2002, II-7), l' the
     # added length of the water moving with the channel's ends. With l' = 0 it is a
     # strict lower bound (the ends' added mass can only lengthen the period). From
-    # memory: the added length of a channel end opening into wide water is
-    # -(b / pi) ln(pi b / (sqrt(g h) T)) (Miles 1948 for the sea end); we take it at both
-    # ends, the basin being much wider than the channel; loose tolerance 5 % on T.
+    # memory (as recalled from the Coastal Engineering Manual, II-7): the added length
+    # of a channel end opening into wide water is -(b / pi) ln(pi b / (sqrt(g h) T));
+    # we take it at both ends, the basin being much wider than the channel; loose
+    # tolerance 5 % on T.
     # The whole basin then rises and falls together: every point is an antinode.
     h, l, w, t, e = 10.0, 60.0, 40.0, 20.0, 4.0
     pts = {"west corner": (2.0, -t - w + 2.0), "east corner": (l - 2.0, -t - w + 2.0),
@@ -223,3 +224,15 @@ def test_cli_bad_input_exits_2_and_writes_nothing(tmp_path, capsys, args):
     assert len(err) == 1 and err[0].startswith("harbor:")
     assert not out.exists()
     assert sorted(p.name for p in Path(tmp_path).iterdir()) == ["basin.toml"]
+
+
+def test_cli_help_gives_a_worked_example(capsys):
+    with pytest.raises(SystemExit) as e:
+        main(["seiche", "--help"])
+    assert e.value.code == 0
+    text = capsys.readouterr().out
+    assert "harbor seiche scenarios/demo.toml --out seiche" in text
+    assert "--periods" in text and "--count" in text and "--from" in text
+    with pytest.raises(SystemExit):
+        main(["--help"])
+    assert "seiche" in capsys.readouterr().out

@@ -164,10 +164,12 @@ def plot_response(ds, path, title=None, dpi=150):
     ax.set_ylim(bottom=0)
     for k, Tn in enumerate(ds["natural_period"].values):
         ax.axvline(float(Tn), color="#1b5e20", linewidth=0.9, linestyle=(0, (4, 2)))
+        # upright along its line, so that close natural periods keep legible labels
         ax.annotate(f"T{k + 1} = {float(Tn):.1f} s", (float(Tn), 1.0),
-                    xycoords=("data", "axes fraction"), xytext=(3, -4 - 11 * (k % 2)),
-                    textcoords="offset points", fontsize=8, color="#1b5e20", va="top",
-                    rotation=0)
+                    xycoords=("data", "axes fraction"), xytext=(-2, -4),
+                    textcoords="offset points", fontsize=7.5, color="#1b5e20", va="top",
+                    ha="right", rotation=90,
+                    bbox=dict(boxstyle="square,pad=0.1", fc="white", ec="none", alpha=0.8))
     ax.set_xlabel("wave period T (s)")
     ax.set_ylabel("amplification |η| / incident amplitude")
     ax.grid(True, which="both", color="#e3e3e3", linewidth=0.6)

@@ -323,35 +323,45 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
         key = round(float(T), 9)
         if key in solved:
             return solved[key]
+        u, info, used, error = None, {}, float(T), None
         try:
-            model = _model(scenario, evalp)
-            r = model.regular(float(T), travel)
-            u = np.asarray(r.points, complex)
-            info = r.info
-            for w in model.notices:
-                w = as_notice(w)
-                if w.code == "field-from-land":
-                    # the model brings no wave in at this period: not a calm basin but
-                    # no answer, so it must neither draw a zero nor make a false peak
-                    unreached.append(float(T))
-                    u = np.full(len(evalp), np.nan + 0j)
-                notes.append(w)
-        except RuntimeError as e:
-            # the mesher can fail on one period's geometry; the others still stand
-            u = np.full(len(evalp), np.nan + 0j)
-            info = {}
-            notes.append(Notice("response-skipped", f"period {T:.4g} s could not be "
-                                f"solved ({e}); it is left out of the curve"))
+            # the mesher can fail on one period's geometry: a period 0.3 % away gives
+            # another mesh, and the curve records the period actually solved
+            for Tt in (float(T), float(T) * 1.003, float(T) / 1.003):
+                try:
+                    model = _model(scenario, evalp)
+                    r = model.regular(Tt, travel)
+                except RuntimeError as e:
+                    error = e
+                    continue
+                used, u, info = Tt, np.asarray(r.points, complex), r.info
+                if Tt != float(T):
+                    shifted.append(float(T))
+                for w in model.notices:
+                    w = as_notice(w)
+                    if w.code == "field-from-land":
+                        # the model brings no wave in at this period: not a calm basin
+                        # but no answer, so it must neither draw a zero nor make a
+                        # false peak
+                        unreached.append(Tt)
+                        u = np.full(len(evalp), np.nan + 0j)
+                    notes.append(w)
+                break
+            if u is None:
+                u = np.full(len(evalp), np.nan + 0j)
+                notes.append(Notice("response-skipped", f"period {T:.4g} s could not be "
+                                    f"meshed ({error}); it is left out of the curve"))
         finally:
             if progress is not None:
                 progress("response", min(len(solved) + 1, total[0]), total[0])
         amp = np.abs(u)
         inside = np.isfinite(amp)
         basin = float(np.sqrt(np.mean(amp[inside] ** 2))) if inside.any() else np.nan
-        solved[key] = (float(T), u, basin, int(info.get("unknowns", 0)))
+        solved[key] = (used, u, basin, int(info.get("unknowns", 0)), key)
         return solved[key]
 
     unreached: list[float] = []
+    shifted: list[float] = []
     refined_keys = set()
     for T in coarse:
         solve_one(T)
@@ -361,27 +371,27 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
     for i in peaks:
         if refine and 0 < i < coarse.size - 1:
             total[0] += 8
-            Tp, Rp = _refine(solve_one, coarse[i - 1], coarse[i], coarse[i + 1],
-                             refined_keys, solved)
+            best = _refine(solve_one, coarse[i - 1], coarse[i], coarse[i + 1],
+                           refined_keys, solved)
         else:
-            Tp, Rp = float(coarse[i]), float(R[i])
-        natural.append((Tp, Rp))
+            best = solved[round(float(coarse[i]), 9)]
+        natural.append(best)
     if refine:
         # a sharp resonance can fall between two periods and raise neither; the phase
         # of the field still turns by about half a cycle across it
         Uc = np.array([solved[round(float(T), 9)][1] for T in coarse])
         for i in _phase_turns(Uc, peaks):
             total[0] += 12
-            Tp, Rp = _refine(solve_one, coarse[i], 0.5 * (coarse[i] + coarse[i + 1]),
-                             coarse[i + 1], refined_keys, solved, maxiter=12)
+            best = _refine(solve_one, coarse[i], 0.5 * (coarse[i] + coarse[i + 1]),
+                           coarse[i + 1], refined_keys, solved, maxiter=12)
             ends = max(R[i], R[i + 1])
-            if np.isfinite(Rp) and Rp > ends * (1.0 + PEAK_PROMINENCE) \
-                    and coarse[i] < Tp < coarse[i + 1]:
-                natural.append((Tp, Rp))
-    natural.sort(key=lambda tr: -tr[0])
+            if np.isfinite(best[2]) and best[2] > ends * (1.0 + PEAK_PROMINENCE) \
+                    and coarse[i] < best[4] < coarse[i + 1]:
+                natural.append(best)
+    natural = sorted({b[4]: b for b in natural}.values(), key=lambda b: -b[0])
 
     # the curve: every period solved, ascending
-    keys = sorted(solved)
+    keys = sorted(solved, key=lambda k: solved[k][0])
     per = np.array([solved[k][0] for k in keys])
     U = np.array([solved[k][1] for k in keys]).reshape(len(keys), len(evalp))
     basin = np.array([solved[k][2] for k in keys])
@@ -391,14 +401,13 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
     phase = np.degrees(np.angle(U[:, :npt]))
     phase[~np.isfinite(amp)] = np.nan
 
-    nat_T = np.array([t for t, _ in natural], float)
-    nat_R = np.array([r for _, r in natural], float)
+    nat_T = np.array([b[0] for b in natural], float)
+    nat_R = np.array([b[2] for b in natural], float)
     m_amp = np.full((len(natural), npt), np.nan)
     m_share = np.full((len(natural), npt), np.nan)
     m_pos = np.full((len(natural), npt), "", dtype=object)
-    for j, (Tn, _) in enumerate(natural):
-        _, u, _, _ = solved[round(Tn, 9)]
-        a = np.abs(u)
+    for j, b in enumerate(natural):
+        a = np.abs(b[1])
         top = np.nanmax(a) if np.isfinite(a).any() else np.nan
         m_amp[j] = a[:npt]
         m_share[j] = a[:npt] / top
@@ -419,6 +428,10 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
         notes.append(Notice("response-no-waves", f"no wave reaches the points from "
                             f"{from_deg:g} deg true at any period: choose another "
                             f"direction"))
+    if shifted:
+        notes.append(Notice("response-shifted", f"{len(shifted)} period(s) could not be "
+                            f"meshed as asked and were solved 0.3 % away (the curve gives "
+                            f"the period solved)", level="note"))
     notes.append(Notice("response-undamped", NOTE_UNDAMPED, level="note"))
     notes = list(dict.fromkeys(notes))
 
@@ -536,14 +549,12 @@ def _refine(solve_one, a, b, c, refined_keys, solved, maxiter=8):
     def neg(T):
         return -solve_one(T)[2]
 
-    res = minimize_scalar(neg, bounds=(float(a), float(c)), method="bounded",
-                          options={"xatol": 1e-3 * float(b), "maxiter": maxiter})
+    minimize_scalar(neg, bounds=(float(a), float(c)), method="bounded",
+                    options={"xatol": 1e-3 * float(b), "maxiter": maxiter})
     refined_keys.update(set(solved) - before)
-    # the best period solved, the coarse one included
-    best = max((solved[k] for k in solved if a <= solved[k][0] <= c),
-               key=lambda s: s[2] if np.isfinite(s[2]) else -np.inf)
-    del res
-    return best[0], best[2]
+    # the best period solved between a and c, the coarse one included
+    inside = [solved[k] for k in solved if a <= k <= c]
+    return max(inside, key=lambda s: s[2] if np.isfinite(s[2]) else -np.inf)
 
 
 def _range_notices(coarse, R, peaks):
