@@ -11,7 +11,6 @@ import io
 import math
 from pathlib import Path
 
-import numpy as np
 
 from harbor.cautions import CAUTION_SHORT
 from harbor.outputs.style import new_figure, wrap_to

@@ -46,6 +46,9 @@ NODE_SHARE = 0.3
 #: share of its height above the lower of the troughs on either side.
 PEAK_PROMINENCE = 0.05
 
+#: ... and at least this many times the median basin response over the range.
+PEAK_OVER_MEDIAN = 1.5
+
 #: Lattice points placed in the basin to find modes whatever the points' positions.
 N_PROBES = 150
 
@@ -276,7 +279,8 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
     mouth's width and length, l' its added length) (Rabinovich 2009). The natural periods
     are the local maxima of the basin response
     :math:`R(T) = \sqrt{\overline{|\eta|^2}}` over the coarse periods that stand at
-    least :data:`PEAK_PROMINENCE` of their height above the neighbouring troughs, each
+    least :data:`PEAK_PROMINENCE` of their height above the neighbouring troughs and
+    reach :data:`PEAK_OVER_MEDIAN` times the median of R over the range, each
     refined by Brent's bounded search (successive parabolic interpolation) between its
     neighbours, to 0.1 % of the period in at most 8 further solves.
 
@@ -386,6 +390,7 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
                            coarse[i + 1], refined_keys, solved, maxiter=12)
             ends = max(R[i], R[i + 1])
             if np.isfinite(best[2]) and best[2] > ends * (1.0 + PEAK_PROMINENCE) \
+                    and best[2] >= PEAK_OVER_MEDIAN * float(np.nanmedian(R)) \
                     and coarse[i] < best[4] < coarse[i + 1]:
                 natural.append(best)
     natural = sorted({b[4]: b for b in natural}.values(), key=lambda b: -b[0])
@@ -496,6 +501,10 @@ def _peaks(R):
     keep = props["prominences"] >= PEAK_PROMINENCE * r[idx]
     # a peak needs solved periods on both sides: the edge of a gap is not a resonance
     keep &= ok[np.maximum(idx - 1, 0)] & ok[np.minimum(idx + 1, r.size - 1)]
+    # and it must amplify: a bump in a calm stretch of the curve is not a seiche (and
+    # may be no more than the difference between two periods' meshes)
+    if ok.any():
+        keep &= r[idx] >= PEAK_OVER_MEDIAN * float(np.median(R[ok]))
     return [int(i) for i in idx[keep]]
 
 
