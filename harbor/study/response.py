@@ -397,6 +397,9 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
 
     # the curve: every period solved, ascending
     keys = sorted(solved, key=lambda k: solved[k][0])
+    # a shifted period may land on one already solved: keep one of each
+    keys = [k for i, k in enumerate(keys)
+            if i == 0 or solved[k][0] != solved[keys[i - 1]][0]]
     per = np.array([solved[k][0] for k in keys])
     U = np.array([solved[k][1] for k in keys]).reshape(len(keys), len(evalp))
     basin = np.array([solved[k][2] for k in keys])
