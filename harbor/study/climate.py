@@ -514,10 +514,11 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
     cases = list(dict.fromkeys(keys))
     solved = _run_cases(sc, cases, method, workers, progress, executor)
     where = {c: i for i, c in enumerate(cases)}
-    for _, _, ws in solved:
-        for x in ws:
+    for sol in solved:
+        for x in sol[2]:
             if x not in warnings:
                 warnings.append(x)
+    methods = list(dict.fromkeys(sol[3] for sol in solved if len(sol) > 3))
 
     case_of = np.array([where[k] for k in keys])
     kd = np.array([s[0] for s in solved])[case_of]             # (rows, points)
@@ -531,12 +532,20 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
 
     from harbor.solver.assemble import BREAKING_RATIO
 
-    hb = BREAKING_RATIO * scenario.site.depth
-    over = heights > hb
+    from harbor.solver.agitation import has_survey
+
+    if has_survey(scenario):
+        xy = np.array([p.at for p in limited], float).reshape(-1, 2)
+        hb = BREAKING_RATIO * scenario.bathymetry.depth(xy[:, 0], xy[:, 1])
+        hb_text = "0.78 h (local depth)"
+    else:
+        hb = BREAKING_RATIO * scenario.site.depth
+        hb_text = f"0.78 h = {hb:.2f} m"
+    over = heights > np.asarray(hb)[None, ...] if np.ndim(hb) else heights > hb
     if over.any():
         bad = tab.index[over.any(axis=1)]
         listed = ", ".join(str(r) for r in bad[:10]) + (" ..." if len(bad) > 10 else "")
-        warnings.append(f"heights above the depth-limited breaking height 0.78 h = {hb:.2f} m "
+        warnings.append(f"heights above the depth-limited breaking height {hb_text} "
                         f"in climate rows {listed} (flagged, not changed: waves there "
                         "would break)")
     far = reach < 0.5
@@ -583,7 +592,7 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
                    cautions=CAUTION_SHORT, title=scenario.title,
                    scenario=str(scenario.path or ""), arm=arm,
                    move=None if move is None else float(move), entrance_width=width,
-                   warnings=list(warnings)),
+                   warnings=list(warnings), methods=methods),
     )
     result["sector"].attrs.update(long_name="sector centre (direction the waves come "
                                             "from, degrees true)", units="degree")
