@@ -320,6 +320,7 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
     npt = len(P)
 
     notes: list[Notice] = []
+    engine: dict[str, tuple] = {}     # the engine's notices by code: (first, periods)
     solved: dict[float, tuple] = {}
     total = [coarse.size]
 
@@ -349,7 +350,7 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
                         # false peak
                         unreached.append(Tt)
                         u = np.full(len(evalp), np.nan + 0j)
-                    notes.append(w)
+                    engine.setdefault(w.code, (w, []))[1].append(Tt)
                 break
             if u is None:
                 u = np.full(len(evalp), np.nan + 0j)
@@ -423,6 +424,7 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
                             np.where(m_share[j] <= NODE_SHARE, "node", "between"))
         m_pos[j][~np.isfinite(m_share[j])] = ""
 
+    notes = _engine_notices(engine, len(solved)) + notes
     notes += _range_notices(coarse, R, peaks)
     if unreached:
         notes.append(Notice("response-unreached", f"at {len(unreached)} period(s) between "
@@ -567,6 +569,25 @@ def _refine(solve_one, a, b, c, refined_keys, solved, maxiter=8):
     # the best period solved between a and c, the coarse one included
     inside = [solved[k] for k in solved if a <= k <= c]
     return max(inside, key=lambda s: s[2] if np.isfinite(s[2]) else -np.inf)
+
+
+def _engine_notices(engine, n_solved):
+    """The engine's notices once per code, saying at which periods they were given.
+
+    The same limitation recurs at many periods with period-dependent figures (a blend
+    over one wavelength); one sentence each, with the figures of the first period.
+    """
+    out = []
+    for code, (first, periods) in engine.items():
+        p = sorted(set(periods))
+        if len(p) == 1:
+            where = f"at {p[0]:.4g} s"
+        else:
+            where = (f"at {len(p)} of {n_solved} periods, {p[0]:.4g}-{p[-1]:.4g} s; "
+                     f"figures for {periods[0]:.4g} s")
+        out.append(Notice(code, f"{first.text} ({where})", sea=first.sea,
+                          point=first.point, level=first.level))
+    return out
 
 
 def _range_notices(coarse, R, peaks):
