@@ -876,7 +876,8 @@ refined), natural-periods.csv (mode,period_s,basin_response,point,amplification,
 share_of_basin_max,position) and response.png, and prints whether each point sits on a
 node or an antinode of each natural period. Amplification is |eta| over the incident
 amplitude (2 at a straight reflecting coast); the response is linear and undamped, so
-peak heights are upper bounds. Nothing is written if any part fails.
+peak heights are upper bounds. Walls and beaches reflect long waves fully unless
+--reflection scenario. Nothing is written if any part fails.
 """
 
 
@@ -912,6 +913,10 @@ def add_seiche_parser(subparsers):
                          "scenario's points")
     sp.add_argument("--out", default="harbor-out", metavar="DIR",
                     help="output folder (default harbor-out)")
+    sp.add_argument("--reflection", choices=["full", "scenario"], default="full",
+                    help="full (default): every wall and beach reflects long waves fully, "
+                         "as they do in nature; scenario: the scenario's reflection "
+                         "coefficients (chosen for wind waves, they damp seiches)")
     sp.add_argument("--quiet", action="store_true", help="no progress bar")
     sp.set_defaults(func=cmd_seiche)
     return sp
@@ -951,7 +956,8 @@ def cmd_seiche(args):
     show = _progress_printer(args.quiet)
     try:
         ds = response_curve(sc, t_min=t_min, t_max=t_max, n=args.count,
-                            direction=args.from_deg, points=at or None, progress=show)
+                            direction=args.from_deg, points=at or None, progress=show,
+                            reflection=args.reflection)
     except InputError as e:   # name the option the user typed
         if e.key in options:
             raise InputError(e.problem, file=e.file, key=options[e.key]) from None
@@ -963,7 +969,7 @@ def cmd_seiche(args):
     print(response_text(ds))
     print(f"wrote {', '.join(str(p) for p in written)}")
     _print_warnings([n.text for n in dict.fromkeys(notices(ds))])
-    print(f"note: {CAUTION_SHORT}")
+    print(f"note: {ds.attrs.get('caution_short', CAUTION_SHORT)}")
     return 0
 
 

@@ -124,6 +124,7 @@ def test_helmholtz_mode_of_a_basin_behind_a_narrow_channel():
     (dict(periods=[10.0, -1.0]), "periods"),
     (dict(periods=np.arange(1.0, MAX_PERIODS + 2.0)), "periods"),
     (dict(direction=400.0), "direction"),
+    (dict(reflection="none"), "reflection"),
 ])
 def test_bad_range_or_direction_is_an_input_error(kwargs, key):
     sc = _basin_scenario(100.0, 30.0, 4.0, 4.0, 10.0, {"a": (2.0, -30.0)})

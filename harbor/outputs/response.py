@@ -196,7 +196,7 @@ def plot_response(ds, path, title=None, dpi=150):
     foot += wrap_to(ds.attrs.get("definition", ""), 10.3, 7.2)
     for n in list(dict.fromkeys(notices(ds)))[:5]:
         foot += wrap_to(f"{n.level}: {n.text}", 10.3, 7.2)
-    foot += wrap_to(CAUTION_SHORT, 10.3, 7.2)
+    foot += wrap_to(ds.attrs.get("caution_short", CAUTION_SHORT), 10.3, 7.2)
     fig.text(0.02, 0.02, "\n".join(foot[:16]), fontsize=7.2, va="bottom", ha="left",
              color="#555555")
     with atomic_path(path) as tmp:

@@ -22,7 +22,7 @@ import shapely
 import xarray as xr
 
 from harbor import __version__
-from harbor.cautions import Notice, as_notice, caution_text
+from harbor.cautions import Notice, as_notice
 from harbor.errors import InputError
 
 __all__ = ["response_curve", "basin_probes", "MAX_PERIODS", "DEFAULT_RANGE",
@@ -60,6 +60,12 @@ NOTE_UNDAMPED = ("linear, frictionless response: no bottom friction, no entrance
                  "and no non-linear effects, so amplification at the natural periods is an "
                  "upper bound (real peaks are lower and wider); the natural periods "
                  "themselves are the robust result")
+
+NOTE_FULL = ("every wall and the edge of dry ground reflect fully (K_r = 1): long waves "
+             "reflect almost fully from beaches and rubble mounds, whose reflection "
+             "coefficients for wind waves would damp the seiches far too much (Battjes "
+             "1974: reflection grows with the surf similarity parameter); use "
+             "reflection='scenario' (--reflection scenario) for the scenario's K_r")
 
 NOTE_DEFINITION = ("amplification = |eta| / incident amplitude: a straight reflecting coast "
                    "alone gives 2 (incident plus reflected wave)")
@@ -153,30 +159,15 @@ def basin_probes(layout, points, n=N_PROBES):
 
 
 def _model(scenario, points_work):
-    """The full-field model of the scenario at work-frame points.
+    """The full-field model of the scenario at work-frame points (ground frame inside)."""
+    from harbor.solver.agitation import model_for
 
-    Through :func:`harbor.solver.agitation.model_for` when it exists; otherwise built
-    here the same way: the scenario in its ground frame, its bathymetry (or its constant
-    depth), reflection coefficients and footprints when the scenario has them.
-    """
-    try:
-        from harbor.solver.agitation import model_for
-    except ImportError:
-        model_for = None
-    if model_for is not None:
-        return model_for(scenario, points=points_work)
-    from harbor.solver.assemble import ground_scenario
-    from harbor.solver.fullfield import HarbourModel
+    return model_for(scenario, points=points_work)
 
-    ground = ground_scenario(scenario)
-    site = scenario.site
-    gx, gy = site.to_ground(points_work[:, 0], points_work[:, 1])
-    gp = np.column_stack([np.atleast_1d(gx), np.atleast_1d(gy)])
-    bath = getattr(ground, "bathymetry", None)
-    return HarbourModel(ground.layout, site.depth if bath is None else bath, points=gp,
-                        reflection=getattr(ground, "reflection", None) or None,
-                        footprints=getattr(ground, "footprints", None) or None,
-                        g=site.g)
+
+#: Reflection coefficients that make every wall, and the edge of dry ground, reflect
+#: fully (the default for long waves, see :func:`response_curve`).
+FULL_REFLECTION = {"default": 1.0, "dry": 1.0}
 
 
 def _direction(scenario, from_deg):
@@ -202,7 +193,7 @@ def _direction(scenario, from_deg):
 
 def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT_RANGE[1],
                    n=DEFAULT_COUNT, direction=None, points=None, progress=None,
-                   refine=True, probes=True):
+                   refine=True, probes=True, reflection="full"):
     r"""The basin's response to regular long waves, and its natural periods.
 
     Parameters
@@ -229,6 +220,10 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
     probes : bool
         Add hidden lattice points in the basin (:func:`basin_probes`) so that a mode is
         found even where every point of interest lies on its node.
+    reflection : {"full", "scenario"}
+        ``"full"`` (default): every wall and the edge of dry ground reflect fully
+        (K_r = 1), as long waves do from beaches and rubble mounds; ``"scenario"``: the
+        scenario's reflection coefficients (usually chosen for wind waves).
 
     Returns
     -------
@@ -297,12 +292,24 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
 
     Brent, R. P. (1973). Algorithms for Minimization without Derivatives. Prentice-Hall,
     ch. 5.
+
+    Battjes, J. A. (1974). Surf similarity. Proc. 14th International Conference on
+    Coastal Engineering, ASCE, 466-480.
     """
+    import dataclasses
+
+    from harbor.cautions import caution_text, short_caution
     from harbor.solver.assemble import given_points, notices_variables
 
     t_start = time.perf_counter()
     coarse = _positive_periods(t_min, t_max, n, periods)
     from_deg, travel = _direction(scenario, direction)
+    if reflection not in ("full", "scenario"):
+        raise InputError(f"reflection must be 'full' or 'scenario', got {reflection!r}",
+                         key="reflection")
+    model_scenario = scenario
+    if reflection == "full":
+        model_scenario = dataclasses.replace(scenario, reflection=dict(FULL_REFLECTION))
     site = scenario.site
     if points:
         pts = [(name, float(x), float(y)) for name, x, y in given_points(scenario, points)]
@@ -334,7 +341,7 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
             # another mesh, and the curve records the period actually solved
             for Tt in (float(T), float(T) * 1.003, float(T) / 1.003):
                 try:
-                    model = _model(scenario, evalp)
+                    model = _model(model_scenario, evalp)
                     r = model.regular(Tt, travel)
                 except RuntimeError as e:
                     error = e
@@ -442,6 +449,8 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
         notes.append(Notice("response-shifted", f"{len(shifted)} period(s) could not be "
                             f"meshed as asked and were solved 0.3 % away (the curve gives "
                             f"the period solved)", level="note"))
+    if reflection == "full":
+        notes.append(Notice("response-walls-full", NOTE_FULL, level="note"))
     notes.append(Notice("response-undamped", NOTE_UNDAMPED, level="note"))
     notes = list(dict.fromkeys(notes))
 
@@ -456,7 +465,9 @@ def response_curve(scenario, periods=None, t_min=DEFAULT_RANGE[0], t_max=DEFAULT
         t_min=float(coarse.min()), t_max=float(coarse.max()), probes=int(len(probe)),
         natural_periods=[float(t) for t in nat_T], definition=NOTE_DEFINITION,
         depth=float(site.depth), crs=site.work_crs.to_string(),
-        scenario_crs=str(site.crs_code), cautions=caution_text(),
+        scenario_crs=str(site.crs_code),
+        cautions=caution_text(screening=False, full_field=True),
+        caution_short=short_caution(screening=False, full_field=True), reflection=reflection,
         harbor_version=__version__,
         created=_dt.datetime.now(_dt.timezone.utc).replace(microsecond=0).isoformat(),
         seconds=float(time.perf_counter() - t_start))
