@@ -194,10 +194,15 @@ def plot_response(ds, path, title=None, dpi=150):
              color="#333333", family="monospace")
     foot = wrap_to(f"method: {ds.attrs['method']}", 10.3, 7.2)
     foot += wrap_to(ds.attrs.get("definition", ""), 10.3, 7.2)
-    for n in list(dict.fromkeys(notices(ds)))[:5]:
+    items = list(dict.fromkeys(notices(ds)))
+    items = [n for n in items if n.level == "warning"] + \
+        [n for n in items if n.level != "warning"]
+    for n in items:
         foot += wrap_to(f"{n.level}: {n.text}", 10.3, 7.2)
-    foot += wrap_to(ds.attrs.get("caution_short", CAUTION_SHORT), 10.3, 7.2)
-    fig.text(0.02, 0.02, "\n".join(foot[:16]), fontsize=7.2, va="bottom", ha="left",
+    caution = wrap_to(ds.attrs.get("caution_short", CAUTION_SHORT), 10.3, 7.2)
+    if len(foot) + len(caution) > 18:
+        foot = foot[:17 - len(caution)] + ["... (all warnings: harbor seiche's output)"]
+    fig.text(0.02, 0.02, "\n".join(foot + caution), fontsize=7.2, va="bottom", ha="left",
              color="#555555")
     with atomic_path(path) as tmp:
         fig.savefig(tmp, dpi=dpi, format="png")
