@@ -190,7 +190,7 @@ def plan(scenario, sea=None, method="auto", grid=True):
                                     wet_xy=wet_xy, model=model)
         if c.full_field and c.estimate is None:
             c = dataclasses.replace(c, estimate=agitation.estimate(
-                model, agitation.sea_periods(s)))
+                model, agitation.sea_periods(s), random=s.kind == "random"))
         out.append((s, c))
     return out
 
@@ -271,7 +271,9 @@ def solve_sea_full_field(ground, sea, model, progress=None):
         comps = random_components(sea.height, sea.period, s_max=sea.spreading,
                                   spectrum=sea.spectrum, peak_period=sea.peak_period,
                                   gamma=sea.gamma)
-        res = model.random(comps, direction, progress=progress)
+        from harbor.solver.agitation import band_cap
+
+        res = model.random(comps, direction, progress=progress, max_unknowns=band_cap())
         n = len(model.points)
         kd, ratio = res.kd_points[:n], res.ratio_points[:n]
         w = float(np.sum(comps.weight))
