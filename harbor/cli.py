@@ -780,6 +780,7 @@ def build_parser():
     add_sweep_parser(sub)
     add_climate_parser(sub)
     add_import_parser(sub)
+    add_seiche_parser(sub)
     return p
 
 
@@ -863,6 +864,117 @@ def _internal_error(e):  # pragma: no cover - internal errors
     if os.environ.get("HARBOR_DEBUG"):
         raise e
     return 1
+
+
+SEICHE_EXAMPLE = """examples:
+  harbor seiche scenarios/demo.toml --out seiche
+  harbor seiche scenarios/demo.toml --periods 40 400 --count 80 --from 330 --out seiche
+  harbor seiche scenarios/demo.toml --at 302900 4986150 --out seiche-quay
+
+Solves the harbour with the full-field method for regular long waves at COUNT periods
+from MIN to MAX seconds (evenly spaced in log T; default 60 periods, 30-300 s), waves
+from --from degrees true (default the first sea state's direction), and finds the
+basin's natural periods as the peaks of its response, each refined by a few more
+periods. Writes response.csv (period_s,point,amplification,phase_deg,basin_response,
+refined), natural-periods.csv (mode,period_s,basin_response,point,amplification,
+share_of_basin_max,position) and response.png, and prints whether each point sits on a
+node or an antinode of each natural period. Amplification is |eta| over the incident
+amplitude (2 at a straight reflecting coast); the response is linear and undamped, so
+peak heights are upper bounds. Walls and beaches reflect long waves fully unless
+--reflection scenario. Nothing is written if any part fails.
+"""
+
+
+def add_seiche_parser(subparsers):
+    """Add ``harbor seiche`` (the basin's long-period response) to the subparsers.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        From ``ArgumentParser.add_subparsers``.
+
+    Returns
+    -------
+    argparse.ArgumentParser
+        The ``seiche`` parser (its ``func`` default is :func:`cmd_seiche`).
+    """
+    sp = subparsers.add_parser(
+        "seiche", help="basin response to long waves: amplification against period, "
+                       "natural periods, nodes and antinodes at the points",
+        epilog=SEICHE_EXAMPLE + "\n" + EPILOG_TAIL,
+        formatter_class=argparse.RawDescriptionHelpFormatter)
+    sp.add_argument("scenario", help="scenario file (TOML)")
+    sp.add_argument("--periods", nargs=2, type=float, default=[30.0, 300.0],
+                    metavar=("MIN", "MAX"), help="period range in s (default 30 300)")
+    sp.add_argument("--count", type=int, default=60, metavar="N",
+                    help="number of periods, spaced evenly in log T (default 60, at most "
+                         "400; each is one full-field solve)")
+    sp.add_argument("--from", dest="from_deg", type=float, metavar="DEG",
+                    help="direction the waves come from, degrees true (default: the first "
+                         "sea state's)")
+    sp.add_argument("--at", nargs=2, action="append", metavar=("X", "Y"),
+                    help="a point in the scenario's CRS (repeatable); default the "
+                         "scenario's points")
+    sp.add_argument("--out", default="harbor-out", metavar="DIR",
+                    help="output folder (default harbor-out)")
+    sp.add_argument("--reflection", choices=["full", "scenario"], default="full",
+                    help="full (default): every wall and beach reflects long waves fully, "
+                         "as they do in nature; scenario: the scenario's reflection "
+                         "coefficients (chosen for wind waves, they damp seiches)")
+    sp.add_argument("--quiet", action="store_true", help="no progress bar")
+    sp.set_defaults(func=cmd_seiche)
+    return sp
+
+
+def cmd_seiche(args):
+    """Run ``harbor seiche``: call :func:`harbor.study.response.response_curve`, write
+    the CSV files and the PNG, print the natural periods.
+
+    Parameters
+    ----------
+    args : argparse.Namespace
+        From the parser of :func:`add_seiche_parser`.
+
+    Returns
+    -------
+    int
+        0; user mistakes raise :class:`harbor.errors.InputError`.
+    """
+    from harbor.outputs.response import response_text, write_response
+    from harbor.solver.assemble import notices
+    from harbor.study.response import response_curve
+
+    options = {"t_min": "--periods", "t_max": "--periods", "n": "--count",
+               "periods": "--periods", "direction": "--from", "points": "--at"}
+    t_min, t_max = args.periods
+    # the range is checked before the scenario is read or anything is solved
+    for v in (t_min, t_max):
+        if not (math.isfinite(v) and v > 0):
+            raise InputError(f"--periods needs two positive numbers of seconds, got "
+                             f"{t_min:g} {t_max:g}", key="--periods")
+    if not t_min < t_max:
+        raise InputError(f"--periods MIN ({t_min:g} s) must be less than MAX "
+                         f"({t_max:g} s)", key="--periods")
+    sc = _load(args.scenario)
+    at = _parse_at(args.at)
+    show = _progress_printer(args.quiet)
+    try:
+        ds = response_curve(sc, t_min=t_min, t_max=t_max, n=args.count,
+                            direction=args.from_deg, points=at or None, progress=show,
+                            reflection=args.reflection)
+    except InputError as e:   # name the option the user typed
+        if e.key in options:
+            raise InputError(e.problem, file=e.file, key=options[e.key]) from None
+        raise
+    written = write_response(ds, args.out)
+    print(f"basin response, waves from {ds.attrs['direction_from']:g} deg true, "
+          f"{ds.sizes['period']} periods {ds.attrs['t_min']:g}-{ds.attrs['t_max']:g} s "
+          f"in {ds.attrs['seconds']:.0f} s")
+    print(response_text(ds))
+    print(f"wrote {', '.join(str(p) for p in written)}")
+    _print_warnings([n.text for n in dict.fromkeys(notices(ds))])
+    print(f"note: {ds.attrs.get('caution_short', CAUTION_SHORT)}")
+    return 0
 
 
 if __name__ == "__main__":
