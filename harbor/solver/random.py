@@ -26,7 +26,7 @@ from harbor.solver.layout import (
     general_field,
     head_visibility,
 )
-from harbor.solver.kernels._compiled import HAVE_NUMBA
+from harbor.solver.kernels._compiled import HAVE_NUMBA, blas_limited
 from harbor.solver.kernels.gap import gap_exact_many
 from harbor.geometry.entrance import basin_mask
 from harbor.geometry.visibility import layout_segments
@@ -116,8 +116,9 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
     .. [2] Goda, Y. (2010). *Random Seas and Design of Maritime Structures* (3rd ed.).
        World Scientific, sect. 3.2.
     """
-    return _random_sea_field(layout, px, py, components, depth, principal_alpha, g, method,
-                             progress, fused=FUSED)
+    with blas_limited():
+        return _random_sea_field(layout, px, py, components, depth, principal_alpha, g,
+                                 method, progress, fused=FUSED)
 
 
 def _random_sea_field(layout, px, py, components, depth, principal_alpha, g, method,
