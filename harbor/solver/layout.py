@@ -801,6 +801,14 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
         bwater = np.zeros((ncs, ne))
         bphi0 = np.zeros((ncs, ne))
         bn = np.ones((ncs, ne))
+        # a bend's two sides: (face0, water) as harbor.solver.layout.bend_sector picks them
+        bcfg = np.zeros((ncs, ne), np.int64)
+        cfg_face0 = np.zeros((ne, 2))
+        cfg_n = np.ones((ne, 2))
+        q2c = np.ones((ncs, ne))
+        q2s = np.zeros((ncs, ne))
+        qnc = np.ones((ncs, ne))
+        qns = np.zeros((ncs, ne))
         tiny = np.radians(GRAZING_DEG)
         for e, (tip, dirs) in enumerate(edges):
             if len(dirs) == 1:
@@ -815,11 +823,27 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
                 c0[:, e] = np.cos(0.5 * theta0)
                 s0[:, e] = np.sin(0.5 * theta0)
             else:
+                a0 = float(np.arctan2(dirs[0][1], dirs[0][0]))
+                a1 = float(np.arctan2(dirs[1][1], dirs[1][0]))
+                wa = np.mod(a1 - a0, 2 * np.pi)
+                cfg_face0[e] = (a0, a1)
+                cfg_n[e] = (float(wa) / np.pi, float(2 * np.pi - wa) / np.pi)
                 for j in range(ncs):
                     dv = dxy[j]
                     face0, water, phi0 = bend_sector(dirs, float(np.arctan2(-dv[1], -dv[0])))
                     bface0[j, e], bwater[j, e], bphi0[j, e] = face0, water, phi0
                     bn[j, e] = water / np.pi
+                    bcfg[j, e] = 0 if face0 == a0 else 1
+                    cfg_n[e, bcfg[j, e]] = bn[j, e]
+                q2c[:, e] = np.cos(0.5 * bphi0[:, e])
+                q2s[:, e] = np.sin(0.5 * bphi0[:, e])
+                qnc[:, e] = np.cos(0.5 * bphi0[:, e] / bn[:, e])
+                qns[:, e] = np.sin(0.5 * bphi0[:, e] / bn[:, e])
+        cfg_cpn = np.cos(0.5 * np.pi / cfg_n)
+        cfg_spn = np.sin(0.5 * np.pi / cfg_n)
+        big = np.arange(-4, 5)
+        cfg_tabc = np.ascontiguousarray(np.cos(np.pi * cfg_n[..., None] * big))
+        cfg_tabs = np.ascontiguousarray(np.sin(np.pi * cfg_n[..., None] * big))
         lit_heads[cs] = np.sum(elit & (kind == 1)[None, :], axis=1)
         vis_arr = (np.ascontiguousarray(np.array(vis, bool).reshape(ne, n)) if ne
                    else np.zeros((0, n), bool))
@@ -836,6 +860,7 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
             np.ascontiguousarray(fr[..., 0]), np.ascontiguousarray(fr[..., 1]), frn, fph,
             np.ascontiguousarray(elit), np.ascontiguousarray(eph.real),
             np.ascontiguousarray(eph.imag), eysgn, c0, s0, bface0, bwater, bphi0, bn,
+            bcfg, cfg_face0, cfg_n, cfg_cpn, cfg_spn, cfg_tabc, cfg_tabs, q2c, q2s, qnc, qns,
             1 if field else 0, e0, e2, sub_any, sub_field)
         anyp[cs] = sub_any
         if field:

@@ -185,13 +185,63 @@ if HAVE_NUMBA:
         f = -2.0 * inv_2n
         return (c * tr - s * ti) * f, (c * ti + s * tr) * f
 
+    @numba.njit(cache=True, inline="always", error_model="numpy")
+    def _wedge_pre(r, k, phi, ph2c, ph2s, phnc, phns, phi0, q2c, q2s, qnc, qns, n, cpn, spn,
+                   tabc, tabs, val, der, ntab):
+        """_wedge with the angles' sines and cosines taken from the point's (phi) and the
+        direction's (phi0) precomputed ones by the addition formulas: no trigonometric
+        call away from the boundaries (|eps| > 0.1), the direct formula near them."""
+        root = np.sqrt(2.0 * k * r)
+        inv_2pin = 1.0 / (2.0 * np.pi * n)
+        inv_2n = 0.5 / n
+        tr = 0.0
+        ti = 0.0
+        for bi in range(2):
+            if bi == 0:
+                beta = phi - phi0
+                cb2 = ph2c * q2c + ph2s * q2s
+                sb2 = ph2s * q2c - ph2c * q2s
+                cbn = phnc * qnc + phns * qns
+                sbn = phns * qnc - phnc * qns
+            else:
+                beta = phi + phi0
+                cb2 = ph2c * q2c - ph2s * q2s
+                sb2 = ph2s * q2c + ph2c * q2s
+                cbn = phnc * qnc - phns * qns
+                sbn = phns * qnc + phnc * qns
+            for si in range(2):
+                sign = 1.0 if si == 0 else -1.0
+                big_n = np.floor((beta + sign * np.pi) * inv_2pin + 0.5)
+                eps = np.pi + sign * beta - sign * 2.0 * np.pi * n * big_n
+                ni = int(big_n)
+                if abs(eps) > 0.1 and ni >= -4 and ni <= 4:
+                    # |sin(eps/2)| = |cos(beta/2 - pi n N)|; cot(eps/2n) = cot(pi/2n + s beta/2n)
+                    se = abs(cb2 * tabc[ni + 4] + sb2 * tabs[ni + 4])
+                    ct = cpn * cbn - spn * sign * sbn
+                    st = spn * cbn + cpn * sign * sbn
+                    ratio = ct * se / st
+                else:
+                    a = eps * inv_2n
+                    se = abs(np.sin(0.5 * eps))
+                    if abs(a) < 1e-9:
+                        ratio = n if eps >= 0 else -n
+                    else:
+                        ratio = se / np.tan(a)
+                ar, ai = _amp(root * se, val, der, ntab)
+                tr += ratio * ar
+                ti += ratio * ai
+        c, s = _cis(k * r, _CIS_TAB)
+        f = -2.0 * inv_2n
+        return (c * tr - s * ti) * f, (c * ti + s * tr) * f
+
     @numba.njit(**_jit)
     def general_components(px, py, seg, open0, open1, face_seg, ray_scale,
                            tipx, tipy, kind, inx, iny, vis,
                            kk, dx, dy, w, wf2,
                            face_on, fnx, fny, frx, fry, frn, fph,
                            elit, eph_r, eph_i, eysgn, c0, s0, bface0, bwater, bphi0, bn,
-                           mode, e0, e2, anyp, field):
+                           bcfg, cfg_face0, cfg_n, cfg_cpn, cfg_spn, cfg_tabc, cfg_tabs,
+                           q2c, q2s, qnc, qns, mode, e0, e2, anyp, field):
         """Fields of many components of the general method (first order) at many points.
 
         mode 0: ``e0 += w |u|^2``, ``e2 += wf2 |u|^2``, ``anyp[c] |= |u|^2 > 0``;
@@ -221,6 +271,11 @@ if HAVE_NUMBA:
                 par[c, i] = abs(den[c, i]) < 1e-14 * slen[i]
         sqk = np.sqrt(kk)
         rr = np.empty(ne)
+        bphi = np.empty((ne, 2))
+        bph2c = np.empty((ne, 2))
+        bph2s = np.empty((ne, 2))
+        bphnc = np.empty((ne, 2))
+        bphns = np.empty((ne, 2))
         xl0 = np.empty(ne)
         yl0 = np.empty(ne)
         chp = np.empty(ne)
@@ -245,6 +300,13 @@ if HAVE_NUMBA:
                 else:
                     rr[e] = np.hypot(rx, ry)
                     ang[e] = np.arctan2(ry, rx)
+                    for g in range(2):
+                        ph = np.mod(ang[e] - cfg_face0[e, g], 2 * np.pi)
+                        bphi[e, g] = ph
+                        bph2c[e, g] = np.cos(0.5 * ph)
+                        bph2s[e, g] = np.sin(0.5 * ph)
+                        bphnc[e, g] = np.cos(0.5 * ph / cfg_n[e, g])
+                        bphns[e, g] = np.sin(0.5 * ph / cfg_n[e, g])
             e0p = 0.0
             e2p = 0.0
             for c in range(nc):
@@ -310,11 +372,15 @@ if HAVE_NUMBA:
                         wr = cr * tr - ci * ti
                         wi = cr * ti + ci * tr
                     else:
-                        phi = np.mod(ang[e] - bface0[c, e], 2 * np.pi)
+                        g = bcfg[c, e]
+                        phi = bphi[e, g]
                         if not phi <= bwater[c, e] + 1e-12:
                             continue
-                        wr, wi = _wedge(rr[e], phi, bphi0[c, e], bn[c, e], k,
-                                        _A_VAL, _A_DER, _A_N)
+                        wr, wi = _wedge_pre(rr[e], k, phi, bph2c[e, g], bph2s[e, g],
+                                            bphnc[e, g], bphns[e, g], bphi0[c, e], q2c[c, e],
+                                            q2s[c, e], qnc[c, e], qns[c, e], bn[c, e],
+                                            cfg_cpn[e, g], cfg_spn[e, g], cfg_tabc[e, g],
+                                            cfg_tabs[e, g], _A_VAL, _A_DER, _A_N)
                     pr = eph_r[c, e]
                     pi_ = eph_i[c, e]
                     ur += pr * wr - pi_ * wi
