@@ -671,6 +671,22 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
     return u.reshape(shape), n_lit
 
 
+#: Threads for :func:`general_components` (its compiled loop releases the GIL and splits
+#: the points between them); None: one per core, at most 2 (the work per call is a few
+#: seconds at most: more threads only add start-up cost). 1 runs in the caller's thread.
+KERNEL_THREADS = None
+
+
+def _kernel_threads(work):
+    import os
+
+    if work < 200_000:
+        return 1
+    if KERNEL_THREADS is not None:
+        return max(1, int(KERNEL_THREADS))
+    return max(1, min(2, os.cpu_count() or 1))
+
+
 def general_components(layout, px, py, wavelengths, alphas, weights=None, fweights=None,
                        segments=None, visible=None, field=False):
     r"""Many components of the general method at once (first order), fused and compiled.
@@ -847,12 +863,10 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
         lit_heads[cs] = np.sum(elit & (kind == 1)[None, :], axis=1)
         vis_arr = (np.ascontiguousarray(np.array(vis, bool).reshape(ne, n)) if ne
                    else np.zeros((0, n), bool))
-        sub_any = np.zeros(ncs, bool)
-        sub_field = np.zeros((ncs, n) if field else (1, 1), complex)
-        _gk.general_components(
-            px, py, seg4, open0, open1, face_seg, ray_scale,
-            np.ascontiguousarray(tips[:, 0]), np.ascontiguousarray(tips[:, 1]), kind,
-            np.ascontiguousarray(inw[:, 0]), np.ascontiguousarray(inw[:, 1]), vis_arr,
+        args_pre = (seg4, open0, open1, face_seg, ray_scale,
+                    np.ascontiguousarray(tips[:, 0]), np.ascontiguousarray(tips[:, 1]), kind,
+                    np.ascontiguousarray(inw[:, 0]), np.ascontiguousarray(inw[:, 1]))
+        args_post = (
             np.ascontiguousarray(k), np.ascontiguousarray(dxy[:, 0]),
             np.ascontiguousarray(dxy[:, 1]), np.ascontiguousarray(w[cs]),
             np.ascontiguousarray(wf2[cs]),
@@ -861,10 +875,32 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
             np.ascontiguousarray(elit), np.ascontiguousarray(eph.real),
             np.ascontiguousarray(eph.imag), eysgn, c0, s0, bface0, bwater, bphi0, bn,
             bcfg, cfg_face0, cfg_n, cfg_cpn, cfg_spn, cfg_tabc, cfg_tabs, q2c, q2s, qnc, qns,
-            1 if field else 0, e0, e2, sub_any, sub_field)
+            1 if field else 0)
+
+        def run(lo, hi):
+            sub_any = np.zeros(ncs, bool)
+            sub_field = np.zeros((ncs, hi - lo) if field else (1, 1), complex)
+            _gk.general_components(px[lo:hi], py[lo:hi], *args_pre,
+                                   np.ascontiguousarray(vis_arr[:, lo:hi]), *args_post,
+                                   e0[lo:hi], e2[lo:hi], sub_any, sub_field)
+            return lo, hi, sub_any, sub_field
+
+        cuts = np.linspace(0, n, _kernel_threads(n * ncs) + 1).astype(int)
+        spans = [(int(a), int(b)) for a, b in zip(cuts[:-1], cuts[1:]) if b > a]
+        if len(spans) > 1:
+            # the compiled loop releases the GIL: the point ranges run side by side
+            from concurrent.futures import ThreadPoolExecutor
+
+            with ThreadPoolExecutor(len(spans)) as pool:
+                parts = list(pool.map(lambda ab: run(*ab), spans))
+        else:
+            parts = [run(*ab) for ab in spans]
+        sub_any = np.zeros(ncs, bool)
+        for lo, hi, a_, f_ in parts:
+            sub_any |= a_
+            if field:
+                out_field[cs, lo:hi] = f_
         anyp[cs] = sub_any
-        if field:
-            out_field[cs] = sub_field
     if field:
         return out_field, lit_heads, anyp
     return e0, e2, lit_heads, anyp
