@@ -28,9 +28,75 @@ REFLECTION_NOTE = ("reflection from quays, shores and other walls inside the bas
                    "neglected: real basins can be rougher than shown")
 
 
-def caution_text(sep: str = " ") -> str:
-    """Return all cautions joined by ``sep``."""
-    return sep.join(CAUTIONS)
+#: The cautions of a full-field result (the mild-slope engine), replacing the screening
+#: methods' last two.
+CAUTIONS_FULL_FIELD = CAUTIONS[:2] + (
+    "Linear waves by the mild-slope equation over the given depths: breaking, bottom "
+    "friction, wave-current interaction, non-linear and infragravity waves, overtopping "
+    "and transmission through structures are not modelled; the sea outside the model is "
+    "taken at constant depth.",
+    "Walls reflect by their given coefficients K_r, which hold at normal incidence only "
+    "(at other angles the effective reflection differs); structures are impermeable.",
+)
+
+CAUTION_SHORT_FULL_FIELD = (
+    "Preliminary: linear waves by the mild-slope equation over the given depths, without "
+    "breaking. Final design belongs to licensed coastal engineers under local codes."
+)
+
+
+def caution_lines(screening: bool = True, full_field: bool = False) -> tuple:
+    """The cautions of a result, by the methods that produced it.
+
+    Parameters
+    ----------
+    screening : bool
+        Some sea state was answered by the screening methods.
+    full_field : bool
+        Some sea state was answered by the full-field method.
+
+    Returns
+    -------
+    tuple of str
+    """
+    if full_field and not screening:
+        return CAUTIONS_FULL_FIELD
+    if full_field:
+        return CAUTIONS[:2] + tuple(f"Screening methods: {c}" for c in CAUTIONS[2:]) + tuple(
+            f"Full-field method: {c}" for c in CAUTIONS_FULL_FIELD[2:])
+    return CAUTIONS
+
+
+def caution_text(sep: str = " ", screening: bool = True, full_field: bool = False) -> str:
+    """Return all cautions (:func:`caution_lines`) joined by ``sep``."""
+    return sep.join(caution_lines(screening, full_field))
+
+
+def short_caution(screening: bool = True, full_field: bool = False) -> str:
+    """The one-line caution of a result, by the methods that produced it."""
+    if full_field and not screening:
+        return CAUTION_SHORT_FULL_FIELD
+    if full_field:
+        return ("Preliminary: screening methods (linear diffraction, constant depth) and "
+                "the mild-slope equation (no breaking). Final design belongs to licensed "
+                "coastal engineers under local codes.")
+    return CAUTION_SHORT
+
+
+def result_cautions(ds) -> tuple:
+    """The cautions of a solved result (:func:`harbor.solve`), as a tuple of lines."""
+    ff = bool(int(ds.attrs.get("full_field", 0) or 0))
+    methods = [str(m) for m in ds["sea_method"].values] if "sea_method" in ds else []
+    scr = (not methods) or any("full-field" not in m for m in methods)
+    return caution_lines(screening=scr, full_field=ff)
+
+
+def result_short_caution(ds) -> str:
+    """The one-line caution of a solved result."""
+    ff = bool(int(ds.attrs.get("full_field", 0) or 0))
+    methods = [str(m) for m in ds["sea_method"].values] if "sea_method" in ds else []
+    scr = (not methods) or any("full-field" not in m for m in methods)
+    return short_caution(screening=scr, full_field=ff)
 
 
 class Notice(str):

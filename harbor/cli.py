@@ -16,7 +16,7 @@ import sys
 from importlib import resources
 
 from harbor import __version__
-from harbor.cautions import CAUTION_SHORT, caution_text
+from harbor.cautions import CAUTION_SHORT
 from harbor.errors import InputError
 
 EPILOG_TAIL = "Results are preliminary; final design belongs to licensed coastal engineers under local codes."
@@ -139,15 +139,22 @@ def _select_sea(scenario, name):
 
 
 def cmd_check(args):
-    from harbor.solver.assemble import grid_coordinates, notices, solve
+    import numpy as np
+
+    from harbor.solver.assemble import _sea_wavelength, check, grid_coordinates
 
     sc = _load(args.scenario)
-    ds = solve(sc, grid=False)
+    items, planned = check(sc, method=getattr(args, "method", "auto"), with_plan=True)
     site = sc.site
     print(f"{args.scenario}: valid — {len(sc.layout.arms)} arm(s), {len(sc.layout.lands)} land "
           f"polygon(s), {len(sc.seas)} sea state(s), {len(sc.points)} point(s)")
+    depth = f"depth {site.depth:g} m"
+    if sc.bathymetry is not None and not sc.bathymetry.is_constant:
+        depth = (f"depth from a {sc.bathymetry.kind} survey (still-water level "
+                 f"{sc.bathymetry.still_water_level:g} m above chart datum; {site.depth:g} m "
+                 f"outside the model)")
     print(f"  CRS {site.crs_code}; meridian convergence at the site {site.convergence_deg:+.3f} deg "
-          f"(grid bearing = true bearing - convergence); depth {site.depth:g} m")
+          f"(grid bearing = true bearing - convergence); {depth}")
     from harbor.geometry.entrance import entrance_width
     from harbor.solver.assemble import ground_scenario
 
@@ -156,13 +163,58 @@ def cmd_check(args):
         print(f"  entrance width {width:.1f} m (narrowest water passage between the structures)")
     if sc.grid is not None:
         gx, gy = grid_coordinates(sc.grid)
-        print(f"  grid {gx.size} x {gy.size} points at {sc.grid.spacing:g} m")
+        step = sc.grid.ground_spacing or sc.grid.spacing
+        print(f"  grid {gx.size} x {gy.size} points at {step:g} m (ground)")
+    if sc.reflection or sc.footprints:
+        walls = ", ".join(f"{k} K_r {v:g}" if np.ndim(v) == 0 else
+                          f"{k} K_r {'/'.join(f'{x:g}' for x in v)} (per edge)"
+                          for k, v in sc.reflection.items())
+        if walls:
+            print(f"  reflection: {walls}; every other wall K_r 1")
+        if sc.footprints:
+            print("  footprints: " + ", ".join(f"{k} {v:g} m" for k, v in sc.footprints.items()))
     print("methods:")
-    for name, method, L in zip(ds.sea.values, ds.sea_method.values, ds.sea_wavelength.values):
-        print(f"  - {name}: {method} (L = {L:.1f} m)")
-    _print_notices(ds, notices)
-    print(f"note: {CAUTION_SHORT}")
+    for s, c in planned:
+        L = _sea_wavelength(s, site)
+        if c.full_field:
+            e = c.estimate or {}
+            print(f"  - {s.name}: full-field (L = {L:.1f} m) -- {c.reason}")
+            print(f"      estimated {e.get('unknowns', 0):,} unknowns, "
+                  f"{e.get('memory', 0) / 2**30:.1f} GB, about {_secs(e.get('seconds', 0))} "
+                  f"for {len(e.get('periods', ()))} period(s) (nothing solved yet)")
+        else:
+            print(f"  - {s.name}: {c.method if c.method != 'auto' else 'screening'} "
+                  f"(L = {L:.1f} m) -- {c.reason}")
+    shown = [n for n in items if n.code != "full-field-planned"]
+    _print_item_list(shown, [s.name for s, _ in planned])
+    from harbor.cautions import short_caution
+
+    line = short_caution(screening=any(not c.full_field for _, c in planned),
+                         full_field=any(c.full_field for _, c in planned))
+    print(f"note: {line}")
     return 0
+
+
+def _secs(seconds):
+    from harbor.solver.assemble import _duration
+
+    return _duration(seconds)
+
+
+def _print_item_list(items, seas, file=None):
+    file = file or sys.stdout
+    if not items:
+        return
+    print("warnings:", file=file)
+    for n in items:
+        if n.sea is None:
+            print(f"  - {n.text}", file=file)
+    for s in seas:
+        own = [n for n in items if n.sea == s]
+        if own:
+            print(f"  sea state '{s}':", file=file)
+            for n in own:
+                print(f"    - {n.text}", file=file)
 
 
 def _print_notices(ds, notices, file=None):
@@ -219,16 +271,20 @@ def cmd_points(args):
     has_random = bool((ds.sea_kind.values == "random").any())
     # the warnings and the caution go to stderr, so stdout stays machine-readable
     _print_notices(ds, notices, file=sys.stderr)
-    print(f"note: {CAUTION_SHORT}", file=sys.stderr)
+    from harbor.cautions import result_cautions, result_short_caution
+
+    print(f"note: {result_short_caution(ds)}", file=sys.stderr)
     if args.json:
         items = list(dict.fromkeys(notices(ds)))
         print(json.dumps({
             "crs": sc.site.crs_code,
             "method": {str(s): str(m) for s, m in zip(ds.sea.values, ds.sea_method.values)},
+            "method_reason": {str(s): str(m) for s, m in zip(ds.sea.values,
+                                                            ds.sea_method_reason.values)},
             "rows": rows,
             "warnings": [{"code": n.code, "text": n.text, "sea": n.sea, "point": n.point,
                           "level": n.level} for n in items],
-            "cautions": caution_text()}, indent=2))
+            "cautions": " ".join(result_cautions(ds))}, indent=2))
         return 0
     cols = list(POINTS_COLUMNS) + (["period_ratio"] if has_random else []) + list(VERDICT_COLUMNS)
     import csv
@@ -320,12 +376,18 @@ def cmd_diagram(args):
 
 
 def _add_method_option(sp):
-    sp.add_argument("--method", choices=["auto", "general", "superposition", "exact", "field"],
+    sp.add_argument("--method", choices=["auto", "screening", "full-field", "general",
+                                         "superposition", "exact", "field"],
                     default="auto",
-                    help="force a method (default auto: exact gap solution for narrow classic "
-                         "entrances, Penney & Price superposition for wide ones, geometric optics "
-                         "+ head diffraction for other layouts; field: finite-element check of "
-                         "a small harbour, regular seas only)")
+                    help="method (default auto: the scenario's 'method' key, else per sea "
+                         "state the full-field method where the screening methods are "
+                         "outside their measured validity or the harbour has a depth survey "
+                         "or reflection coefficients, and it fits the machine; screening: "
+                         "exact gap solution for narrow classic entrances, Penney & Price "
+                         "superposition for wide ones, geometric optics + head diffraction "
+                         "for other layouts; full-field: the mild-slope finite-element "
+                         "engine; general, superposition, exact: one screening method; "
+                         "field: constant-depth finite-element check, regular seas only)")
 
 
 def add_sweep_parser(subparsers):
@@ -686,6 +748,7 @@ def build_parser():
     sp = sub.add_parser("check", help="validate a scenario and print the validity warnings",
                         epilog=CHECK_EXAMPLE + "\n" + EPILOG_TAIL, formatter_class=fmt)
     sp.add_argument("scenario", help="scenario file (TOML)")
+    method_opt(sp)
     sp.set_defaults(func=cmd_check)
 
     sp = sub.add_parser("diagram", help="non-dimensional diffraction diagram (x/L, y/L)",

@@ -327,8 +327,9 @@ at = {xy(0, 2)}
 def test_validity_masks_mark_the_lee_of_overlapping_heads_only():
     # overlapping heads with a 2 L channel: measured off by up to 1-2 in K' in their lee
     # (docs/accuracy.md sect. 3); the open sea in front stays valid
+    # (method="screening": by default this layout goes to the full-field method)
     sc = _overlap(outer_to=1.0)
-    ds = harbor.solve(sc, grid=True)
+    ds = harbor.solve(sc, grid=True, method="screening")
     assert any(n.code == "overlapping-heads" for n in harbor.solver.assemble.notices(ds))
     valid = ds.valid.values[0]
     X, Y = np.meshgrid(ds.x.values, ds.y.values)

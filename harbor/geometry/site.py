@@ -467,6 +467,28 @@ class Site:
         return (self._ground_origin[0] + j[0, 0] * dx + j[0, 1] * dy,
                 self._ground_origin[1] + j[1, 0] * dx + j[1, 1] * dy)
 
+    def from_ground(self, xg, yg):
+        """Ground frame (m) -> work frame (m): the exact inverse of :meth:`to_ground`.
+
+        Parameters
+        ----------
+        xg, yg : float or array_like
+            Ground-frame coordinates, m.
+
+        Returns
+        -------
+        xw, yw : numpy.ndarray
+            Work-frame coordinates, m.
+        """
+        xg, yg = np.asarray(xg, float), np.asarray(yg, float)
+        if self._to_ground is None:
+            return xg.copy(), yg.copy()
+        self.to_ground(*self.anchor_work)  # sets the linearisation
+        inv = np.linalg.inv(self._ground_jac)
+        dx, dy = xg - self._ground_origin[0], yg - self._ground_origin[1]
+        return (self.anchor_work[0] + inv[0, 0] * dx + inv[0, 1] * dy,
+                self.anchor_work[1] + inv[1, 0] * dx + inv[1, 1] * dy)
+
     def ground_site(self):
         """The site seen from its ground frame: a :class:`Site` in :attr:`ground_crs`.
 

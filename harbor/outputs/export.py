@@ -17,7 +17,7 @@ import contourpy
 import numpy as np
 import pyproj
 
-from harbor.cautions import CAUTION_SHORT, CAUTIONS
+from harbor.cautions import result_cautions, result_short_caution
 from harbor.outputs._atomic import atomic_path, staging_dir, unique_slugs, write_text_atomic
 from harbor.outputs.read import (arm_mask, coordinate_digits, point_rows, sea_info, sea_name,
                                  verdict, warning_lines)
@@ -146,7 +146,7 @@ def write_geojson_isolines(result, sea, path, levels=DEFAULT_LEVELS):
             "geometry": geom,
             "properties": {"level": level, "quantity": "kd", "units": "1",
                            "label": f"K' = {level:g}", "sea": name, "sea_kind": info["kind"],
-                           "method": info["method"], "caution": CAUTION_SHORT},
+                           "method": info["method"], "caution": result_short_caution(result)},
         })
     doc = {"type": "FeatureCollection"}
     if lon_all:
@@ -168,7 +168,7 @@ def write_geojson_isolines(result, sea, path, levels=DEFAULT_LEVELS):
         "levels_requested": [float(v) for v in levels],
         "levels_found": found,
         "warnings": warning_lines(result, sea=name),
-        "cautions": list(CAUTIONS),
+        "cautions": list(result_cautions(result)),
     }
     text = json.dumps(doc, ensure_ascii=False, allow_nan=False, separators=(",", ":"))
     return write_text_atomic(path, text + "\n")
@@ -275,8 +275,8 @@ def netcdf_dataset(result):
         "scenario": str(result.attrs.get("scenario", "")),
         "method": str(result.attrs.get("method", "")),
         "warnings": str(result.attrs.get("warnings", "") or ""),
-        "cautions": "\n".join(CAUTIONS),
-        "comment": CAUTION_SHORT,
+        "cautions": "\n".join(result_cautions(result)),
+        "comment": result_short_caution(result),
         "references": "Penney, W. G. and Price, A. T. (1952). The diffraction theory of sea "
                       "waves and the shelter afforded by breakwaters. Phil. Trans. R. Soc. "
                       "Lond. A 244, 236-253. Goda, Y. (2010). Random Seas and Design of "
@@ -466,7 +466,7 @@ def point_table(result) -> str:
     out.extend(warnings_text(result))
     out.append("")
     out.append("Cautions:")
-    out.extend(f"  - {c}" for c in CAUTIONS)
+    out.extend(f"  - {c}" for c in result_cautions(result))
     return "\n".join(out) + "\n"
 
 

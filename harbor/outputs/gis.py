@@ -25,7 +25,7 @@ import numpy as np
 import pyproj
 import shapely
 
-from harbor.cautions import CAUTION_SHORT, CAUTIONS
+from harbor.cautions import result_cautions, result_short_caution
 from harbor.outputs._atomic import atomic_path, unique_slugs
 from harbor.outputs.read import arm_mask, layout_shapes
 
@@ -253,7 +253,7 @@ def write_geotiff(result, sea, path, quantity="kd"):
                 SCENARIO=str(result.attrs.get("scenario", "")),
                 TITLE=str(result.attrs.get("title", "")),
                 HARBOR_VERSION=str(result.attrs.get("harbor_version", "")),
-                CAUTION=CAUTION_SHORT)
+                CAUTION=result_short_caution(result))
     return Path(path)
 
 
@@ -346,7 +346,7 @@ def write_geopackage(result, path, seas=None, levels=GPKG_LEVELS):
             "SCENARIO": str(result.attrs.get("scenario", "")),
             "HARBOR_VERSION": str(result.attrs.get("harbor_version", "")),
             "CREATED": str(result.attrs.get("created", "")),
-            "CAUTIONS": " ".join(CAUTIONS)}
+            "CAUTIONS": " ".join(result_cautions(result))}
     all_seas = [str(v) for v in result["sea"].values]
     H = {s: float(result["sea_height"].values[all_seas.index(s)]) for s in names}
     method = {s: str(result["sea_method"].values[all_seas.index(s)])

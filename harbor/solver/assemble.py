@@ -140,6 +140,206 @@ def solve_sea(scenario, sea, px, py, method="auto", progress=None):
     return res.kd, res.period_ratio, name, res.reaching
 
 
+def _grid_nodes(scenario, grid=True):
+    """Grid axes, node arrays and the dry mask (land, on an arm) of a scenario."""
+    if grid and scenario.grid is not None:
+        gx, gy = grid_coordinates(scenario.grid)
+    else:
+        gx, gy = np.zeros(0), np.zeros(0)
+    X, Y = np.meshgrid(gx, gy)
+    dry = inside_land(X, Y, scenario.layout) if X.size else np.zeros(X.shape, bool)
+    if X.size:
+        h = scenario.grid.spacing
+        dry |= distance_to_arms(X, Y, scenario.layout) < 1e-6 * max(h, 1.0)
+    return gx, gy, X, Y, dry
+
+
+def plan(scenario, sea=None, method="auto", grid=True):
+    """The method each sea state will get, and why, before anything is solved.
+
+    Parameters
+    ----------
+    scenario : harbor.study.scenario.Scenario
+    sea : str, optional
+        One sea state's name; default all.
+    method : str
+        As for :func:`solve` (``"auto"``: the scenario's ``method``).
+    grid : bool
+        Plan for the grid and the points (as ``harbor map``) or the points only.
+
+    Returns
+    -------
+    list of (harbor.study.scenario.Sea, harbor.solver.agitation.Choice)
+        A full-field choice carries its ``estimate`` (unknowns and memory of the largest
+        factorisation, seconds of all its periods).
+    """
+    from harbor.solver import agitation
+
+    seas = [scenario.sea(sea)] if sea is not None else list(scenario.seas)
+    _, _, X, Y, dry = _grid_nodes(scenario, grid)
+    wet_xy = np.column_stack([X[~dry], Y[~dry]])
+    pnt_xy = np.array([p.at for p in scenario.points], float).reshape(-1, 2)
+    model = _lazy_model(scenario, np.concatenate([wet_xy, pnt_xy]))
+    out = []
+    for s in seas:
+        if method == "field":
+            out.append((s, agitation.Choice("field",
+                                            agitation.REASONS["forced"].format(m="field"))))
+            continue
+        c = agitation.choose_method(scenario, s, method=method, point_xy=pnt_xy,
+                                    wet_xy=wet_xy, model=model)
+        if c.full_field and c.estimate is None:
+            c = dataclasses.replace(c, estimate=agitation.estimate(
+                model, agitation.sea_periods(s)))
+        out.append((s, c))
+    return out
+
+
+def agitation_survey(scenario) -> bool:
+    """True when the scenario has a depth survey (its depth varies)."""
+    from harbor.solver.agitation import has_survey
+
+    return has_survey(scenario)
+
+
+class _lazy_model:
+    """The scenario's full-field model, built on first use and shared by its sea states
+    (factorisations are cached per period inside it)."""
+
+    def __init__(self, scenario, points):
+        self.scenario = scenario
+        self.points = points
+        self._model = None
+
+    def get(self):
+        if self._model is None:
+            from harbor.solver.agitation import model_for
+
+            self._model = model_for(self.scenario, points=self.points)
+        return self._model
+
+    def __getattr__(self, name):  # the estimate reads the model's region and settings
+        return getattr(self.get(), name)
+
+
+def solve_sea_full_field(ground, sea, model, progress=None):
+    """K', period ratio, method and notices of one sea state by the full-field method.
+
+    Parameters
+    ----------
+    ground : harbor.study.scenario.Scenario
+        The scenario in its ground frame (:func:`ground_scenario`).
+    sea : harbor.study.scenario.Sea
+    model : harbor.solver.fullfield.HarbourModel
+        From :func:`harbor.solver.agitation.model_for`; its points are where the
+        answer is wanted.
+    progress : callable, optional
+        ``progress(done, total)`` per frequency band.
+
+    Returns
+    -------
+    kd, period_ratio : numpy.ndarray
+        At the model's points; NaN on land and dry ground (period ratio NaN for
+        regular seas).
+    method_name : str
+    reaching : float
+        Share of the energy that reaches the model from open water.
+    notices : list of harbor.cautions.Notice
+        The model's notices raised while solving this sea state.
+
+    References
+    ----------
+    Berkhoff, J. C. W. (1972). Computation of combined refraction-diffraction. Proc. 13th
+    International Conference on Coastal Engineering, ASCE, 471-490.
+    Goda, Y., Takayama, T. and Suzuki, Y. (1978). Diffraction diagrams for directional
+    random waves. Proc. 16th ICCE, ASCE, 628-650.
+    """
+    from harbor.solver.agitation import METHOD_FULL_FIELD
+
+    before = len(model.notices)
+    direction = float(np.degrees(ground.site.travel_angle(sea.from_deg)))
+    if sea.kind == "regular":
+        if progress:
+            progress(0, 1)
+        u, reach = model._directions(sea.period, [direction])
+        kd = np.abs(u[:, 0])
+        ratio = np.full(kd.shape, np.nan)
+        reaching = 1.0 if bool(reach[0]) else 0.0
+        if progress:
+            progress(1, 1)
+    else:
+        comps = random_components(sea.height, sea.period, s_max=sea.spreading,
+                                  spectrum=sea.spectrum, peak_period=sea.peak_period,
+                                  gamma=sea.gamma)
+        res = model.random(comps, direction, progress=progress)
+        n = len(model.points)
+        kd, ratio = res.kd_points[:n], res.ratio_points[:n]
+        w = float(np.sum(comps.weight))
+        reaching = float(res.reaching / w) if w > 0 else 0.0
+    fresh = [as_notice(n).for_sea(sea.name) for n in model.notices[before:]]
+    return kd, ratio, METHOD_FULL_FIELD, reaching, fresh
+
+
+def wall_variables(layout, reflection):
+    """The reflecting boundaries as Dataset variables, for maps and tables.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+        Work frame (m).
+    reflection : dict
+        :attr:`harbor.study.scenario.Scenario.reflection` (names not listed: 1.0).
+
+    Returns
+    -------
+    dict
+        Along dimension ``wall``: ``wall_wkt`` (LineString, work frame m),
+        ``wall_reflection`` (K_r, -) and ``wall_owner`` (arm or land name); one entry per
+        arm and per run of consecutive land edges that share one K_r.
+    """
+    wkt, kr, owner = [], [], []
+    for a in layout.arms:
+        wkt.append(shapely.to_wkt(a.geometry, rounding_precision=3))
+        kr.append(float(reflection.get(a.name, 1.0)))
+        owner.append(a.name)
+    for ld in layout.lands:
+        ring = np.asarray(ld.outline.exterior.coords)
+        v = reflection.get(ld.name, 1.0)
+        edges = (np.full(len(ring) - 1, float(v)) if np.ndim(v) == 0
+                 else np.asarray(v, float))
+        if len(edges) != len(ring) - 1:
+            edges = np.full(len(ring) - 1, float(np.mean(edges)))
+        # runs of equal K_r; a run may wrap round the ring's start
+        start = 0
+        if np.any(edges != edges[0]):
+            start = int(np.flatnonzero(edges != np.roll(edges, 1))[0])
+        order = np.roll(np.arange(len(edges)), -start)
+        run = [order[0]]
+        for e in order[1:]:
+            if edges[e] == edges[run[-1]]:
+                run.append(e)
+                continue
+            wkt.append(shapely.to_wkt(shapely.LineString(ring[run + [run[-1] + 1]]),
+                                      rounding_precision=3))
+            kr.append(float(edges[run[0]]))
+            owner.append(ld.name)
+            run = [e]
+        idx = run + [run[-1] + 1]
+        wkt.append(shapely.to_wkt(shapely.LineString(ring[idx]), rounding_precision=3))
+        kr.append(float(edges[run[0]]))
+        owner.append(ld.name)
+    obj = dict(dtype=object)
+    return {
+        "wall_wkt": xr.DataArray(np.array(wkt, **obj), dims="wall",
+                                 attrs={"long_name": "reflecting boundary (WKT, work frame, m)"}),
+        "wall_reflection": xr.DataArray(np.array(kr, float), dims="wall",
+                                        attrs={"long_name": "reflection coefficient K_r",
+                                               "units": "1"}),
+        "wall_owner": xr.DataArray(np.array(owner, **obj), dims="wall",
+                                   attrs={"long_name": "arm or land of the boundary"}),
+    }
+
+
 def given_points(scenario, points, key="points"):
     """Check and convert points given in the scenario's CRS to the work frame.
 
@@ -263,15 +463,7 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
     ppy = np.array([p[2] for p in pts], float)
     plim = np.array([np.nan if p[3] is None else p[3] for p in pts], float)
 
-    if grid and scenario.grid is not None:
-        gx, gy = grid_coordinates(scenario.grid)
-    else:
-        gx, gy = np.zeros(0), np.zeros(0)
-    X, Y = np.meshgrid(gx, gy)
-    dry = inside_land(X, Y, scenario.layout) if X.size else np.zeros(X.shape, bool)
-    if X.size:
-        h = scenario.grid.spacing
-        dry |= distance_to_arms(X, Y, scenario.layout) < 1e-6 * max(h, 1.0)
+    gx, gy, X, Y, dry = _grid_nodes(scenario, grid)
 
     ns, ny, nx, npnt = len(seas), gy.size, gx.size, len(pnames)
     kd = np.full((ns, ny, nx), np.nan)
@@ -283,6 +475,13 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
     valid = np.ones((ns, ny, nx), bool)
     pvalid = np.ones((ns, npnt), bool)
     wet = ~dry
+    survey = scenario.bathymetry if agitation_survey(scenario) else None
+    if survey is None:
+        gdepth = np.where(dry, np.nan, float(site.depth))
+        pdepth = np.full(npnt, float(site.depth))
+    else:
+        gdepth = np.where(dry, np.nan, survey.depth(X, Y)) if X.size else np.zeros(X.shape)
+        pdepth = survey.depth(ppx, ppy) if npnt else np.zeros(0)
     allx = np.concatenate([X[wet], ppx])
     ally = np.concatenate([Y[wet], ppy])
     # the waves are computed at every point's ground position (local frame, true scale)
@@ -295,11 +494,34 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
     if note:
         # lengths were corrected: a note, the values are right
         notes.append(Notice("crs-scale", note, level="note"))
+    from harbor.solver import agitation
+
+    wet_xy = np.column_stack([X[wet], Y[wet]])
+    pnt_xy = np.column_stack([ppx, ppy])
+    model = None
+    reasons = []
+    any_screening = False
     for i, s in enumerate(seas):
         cb = None
         if progress is not None:
             cb = (lambda done, total, _n=s.name: progress(_n, done, total))
-        k, r, mname, reach = solve_sea(ground, s, allx, ally, method=method, progress=cb)
+        if method == "field":
+            choice = agitation.Choice("field", agitation.REASONS["forced"].format(m="field"))
+        else:
+            if model is None and (agitation.has_survey(scenario) or scenario.reflection
+                                  or method == "full-field"
+                                  or scenario.method in ("auto", "full-field")):
+                model = _lazy_model(scenario, np.concatenate([wet_xy, pnt_xy]))
+            choice = agitation.choose_method(scenario, s, method=method, point_xy=pnt_xy,
+                                             wet_xy=wet_xy, model=model)
+        reasons.append(choice.reason)
+        if choice.full_field:
+            k, r, mname, reach, fnotes = solve_sea_full_field(ground, s, model.get(), cb)
+        else:
+            any_screening = True
+            k, r, mname, reach = solve_sea(ground, s, allx, ally, method=choice.method,
+                                           progress=cb)
+            fnotes = []
         nw = int(wet.sum())
         kd[i][wet] = k[:nw]
         ratio[i][wet] = r[:nw]
@@ -309,16 +531,22 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         L = _sea_wavelength(s, site)
         wavelengths.append(L)
         reaching.append(reach)
-        more = list(layout_warnings(ground.layout, L, gpts))
         gspec = scenario.grid
         if gspec is not None and getattr(gspec, "ground_spacing", None):
             gspec = dataclasses.replace(gspec, spacing=gspec.ground_spacing)
-        more += grid_notices(gspec, L, s.name)
-        if method == "field":
+        more = list(fnotes) + list(grid_notices(gspec, L, s.name))
+        if choice.needed:
+            more.append(Notice("full-field-too-large", f"sea '{s.name}': {choice.reason}",
+                               sea=s.name))
+        if choice.full_field:
+            pass  # the full-field method holds over the whole model (its notices say where not)
+        elif choice.method == "field":
             from harbor.solver.accuracy import field_method_notes
 
+            more += list(layout_warnings(ground.layout, L, gpts))
             more += field_method_notes(ground, s)
         else:
+            more += list(layout_warnings(ground.layout, L, gpts))
             alpha = float(ground.site.travel_angle(s.from_deg))
             # measured outside the method's validity: the lee that the concerned heads'
             # and bends' waves reach, and their near field (accuracy.invalid_mask)
@@ -339,20 +567,22 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
                 "not-reaching", f"sea '{s.name}' (from {s.from_deg:g} deg) mostly does not "
                 f"reach the harbour from open water ({100 * reach:.0f} % of its energy "
                 f"does): its heights inside are small or zero", sea=s.name))
-        hb = BREAKING_RATIO * site.depth
-        over_pts = [pnames[j] for j in range(npnt) if pkd[i, j] * s.height > hb]
-        n_over = int(np.sum(kd[i] * s.height > hb))
+        hb_p = BREAKING_RATIO * pdepth
+        over_pts = [pnames[j] for j in range(npnt) if pkd[i, j] * s.height > hb_p[j]]
+        n_over = int(np.sum(kd[i] * s.height > BREAKING_RATIO * gdepth))
         if over_pts or n_over:
             where = []
             if over_pts:
                 where.append("points " + ", ".join(f"'{n}'" for n in over_pts))
             if n_over:
                 where.append(f"{n_over} grid points")
+            hb_text = (f"0.78 h = {BREAKING_RATIO * site.depth:.2f} m" if survey is None
+                       else "0.78 h (local depth)")
             notes.append(Notice(
                 "breaking", f"sea '{s.name}': heights above the depth-limited breaking "
-                f"height 0.78 h = {hb:.2f} m at {' and '.join(where)} (flagged, not "
+                f"height {hb_text} at {' and '.join(where)} (flagged, not "
                 f"changed: waves there would break)", sea=s.name))
-    if method != "field":
+    if any_screening and method != "field":
         notes.append(Notice("reflection-neglected", REFLECTION_NOTE, level="note"))
     # one sentence once in the joined text, whatever number of seas it concerns
     warnings = list(dict.fromkeys(notes))
@@ -386,6 +616,11 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
             sea_method=(("sea",), np.array(methods, dtype=object)),
             sea_wavelength=(("sea",), np.array(wavelengths), {"units": "m"}),
             sea_reaching=(("sea",), np.array(reaching), {"units": "1"}),
+            sea_method_reason=(("sea",), np.array(reasons, dtype=object),
+                               {"long_name": "why the sea state's method was used"}),
+            depth=(("y", "x"), gdepth,
+                   {"long_name": "still-water depth", "units": "m",
+                    "constant": int(survey is None)}),
             valid=(("sea", "y", "x"), valid,
                    {"long_name": "value inside the measured validity of its method"}),
             point_valid=(("sea", "point"), pvalid,
@@ -415,7 +650,11 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
     ds["y"].attrs.update(units="m", long_name="northing (work frame)",
                          standard_name="projection_y_coordinate", axis="Y")
     ds = ds.assign(layout_variables(scenario.layout))
+    ds = ds.assign(wall_variables(scenario.layout, scenario.reflection))
     ds.attrs["scenario_crs_is_lonlat"] = int(bool(site.is_lonlat))
+    ds.attrs["full_field"] = int(any(m == agitation.METHOD_FULL_FIELD for m in methods))
+    ds.attrs["cautions"] = caution_text(screening=any_screening or not methods,
+                                        full_field=bool(ds.attrs["full_field"]))
     return with_crs(ds, site.work_crs, site.work_to_lonlat)
 
 
@@ -619,17 +858,59 @@ def points_table(scenario, at=None, sea=None, method="auto"):
     return point_records(ds), ds
 
 
-def check(scenario):
-    """Validity warnings of a scenario without solving the grid.
+def check(scenario, method="auto", with_plan=False):
+    """Validity warnings of a scenario, and the method of each sea state, before solving.
 
     Parameters
     ----------
     scenario : harbor.study.scenario.Scenario
+    method : str
+        As for :func:`solve`.
+    with_plan : bool
+        Also return the plan (:func:`plan`, for the grid and the points as ``harbor
+        map`` solves them).
 
     Returns
     -------
-    list of harbor.cautions.Notice
+    notices : list of harbor.cautions.Notice
         Each sentence once (the sea states it concerns are in its ``sea``, the first).
+        The sea states the screening methods answer are solved at the points (seconds);
+        those planned for the full-field method are not solved: a note gives their
+        method, the reason and the estimated size and time.
+    plan : list, only with ``with_plan``
     """
-    ds = solve(scenario, grid=False)
-    return list(dict.fromkeys(notices(ds)))
+    pl = plan(scenario, method=method, grid=True)
+    out = []
+    site_notes_done = False
+    for s, c in pl:
+        if c.full_field:
+            e = c.estimate or {}
+            out.append(Notice("full-field-planned", f"sea '{s.name}': full-field method "
+                              f"({c.reason}); estimated {e.get('unknowns', 0):,} unknowns, "
+                              f"{e.get('memory', 0) / 2**30:.1f} GB and about "
+                              f"{_duration(e.get('seconds', 0))} for "
+                              f"{len(e.get('periods', ()))} period(s)", sea=s.name,
+                              level="note"))
+            continue
+        one = dataclasses.replace(scenario, seas=(s,))
+        m = "screening" if c.method == "auto" else c.method
+        ds = solve(one, grid=False, method=m)
+        for n in notices(ds):
+            if n.sea is None and site_notes_done:
+                continue
+            out.append(n)
+        site_notes_done = True
+        if c.needed:
+            out.append(Notice("full-field-too-large", f"sea '{s.name}': {c.reason}",
+                              sea=s.name))
+    notes = list(dict.fromkeys(out))
+    return (notes, pl) if with_plan else notes
+
+
+def _duration(seconds):
+    seconds = float(seconds)
+    if seconds < 90:
+        return f"{max(seconds, 1):.0f} s"
+    if seconds < 5400:
+        return f"{seconds / 60:.0f} min"
+    return f"{seconds / 3600:.1f} h"

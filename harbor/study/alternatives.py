@@ -47,6 +47,52 @@ def _solve_direction(scenario, method, period, from_deg, spreading, name):
     return ds.point_kd.values[0].copy(), float(ds.sea_reaching.values[0]), warnings
 
 
+def _task_sea(task, direction, name="climate case"):
+    from harbor.study.scenario import Sea
+
+    return Sea(name=name, kind="random", height=1.0, period=task["period"],
+               from_deg=direction, spreading=task["spreading"])
+
+
+def _task_choice(scenario, method, task):
+    """The method of one task, decided once for all its directions (the reasons of
+    :func:`harbor.solver.agitation.choose_method` that depend on the direction are
+    taken over the task's directions: any direction needing the full field takes the
+    whole task there, so one factorisation per band serves them all)."""
+    from harbor.solver import agitation
+
+    pts = np.array([p.at for p in scenario.points], float).reshape(-1, 2)
+    first = None
+    for d in task["directions"]:
+        c = agitation.choose_method(scenario, _task_sea(task, d), method=method,
+                                    point_xy=pts)
+        first = first or c
+        if c.full_field or c.needed:
+            return c
+    return first
+
+
+def _full_field_group(scenario, task, choice):
+    """K' at the points for every direction of a task by the full-field method: one
+    factorisation per frequency band for all the directions."""
+    from harbor.solver.agitation import model_for
+    from harbor.waves.spectra import random_components
+
+    model = model_for(scenario)
+    site = scenario.site
+    ground = site.ground_site() if not site.is_lonlat else site
+    comps = random_components(1.0, task["period"], s_max=task["spreading"])
+    dirs = [float(np.degrees(ground.travel_angle(d))) for d in task["directions"]]
+    res = model.random(comps, dirs)
+    if not isinstance(res, (list, tuple)):  # an engine that takes one direction at a time
+        res = [res] + [model.random(comps, d) for d in dirs[1:]]
+    w = float(np.sum(comps.weight))
+    kd = [r.kd_points.copy() for r in res]
+    reach = [float(r.reaching / w) if w > 0 else 0.0 for r in res]
+    warns = list(dict.fromkeys(str(n) for n in model.notices))
+    return kd, reach, warns
+
+
 def solve_group(shared, task):
     """One task: every direction of one (alternative, period, spreading).
 
@@ -81,13 +127,21 @@ def solve_group(shared, task):
     """
     sc = shared["scenarios"][task["alternative"]]
     kd, reach, warns = [], [], []
-    for d, name in zip(task["directions"], task["names"]):
-        k, r, w = _solve_direction(sc, shared["method"], task["period"], d,
-                                   task["spreading"], name)
-        kd.append(k)
-        reach.append(r)
-        warns.extend(x for x in w if x not in warns)
-    out = {"kd": np.array(kd), "reaching": np.array(reach), "warnings": warns}
+    choice = _task_choice(sc, shared["method"], task)
+    if choice.full_field:
+        kd, reach, warns = _full_field_group(sc, task, choice)
+    else:
+        m = shared["method"] if choice.method == "auto" and shared["method"] != "auto" \
+            else ("screening" if choice.method == "auto" else choice.method)
+        for d, name in zip(task["directions"], task["names"]):
+            k, r, w = _solve_direction(sc, m, task["period"], d, task["spreading"], name)
+            kd.append(k)
+            reach.append(r)
+            warns.extend(x for x in w if x not in warns)
+        if choice.needed:
+            warns.append(f"{choice.reason} (T1/3 {task['period']:g} s)")
+    out = {"kd": np.array(kd), "reaching": np.array(reach), "warnings": warns,
+           "method": choice.method, "reason": choice.reason}
     if task.get("heights") is not None:
         lim = np.array([np.inf if p.limit is None else p.limit for p in sc.points])
         h = out["kd"][np.asarray(task["direction_of"], int)] \
@@ -229,7 +283,8 @@ def solve_cases(scenario, cases, method="auto", executor=None, workers=None,
     Returns
     -------
     list of tuple
-        ``(kd, reaching, warnings)`` per case, in the order of ``cases``.
+        ``(kd, reaching, warnings, method)`` per case, in the order of ``cases``;
+        ``method`` names the method of the case's task and why.
     """
     from harbor.study.executor import make_executor
 
@@ -249,8 +304,16 @@ def solve_cases(scenario, cases, method="auto", executor=None, workers=None,
     out = []
     for c in order:
         t, j = case_at[c]
-        out.append((res[t]["kd"][j], float(res[t]["reaching"][j]), res[t]["warnings"]))
+        out.append((res[t]["kd"][j], float(res[t]["reaching"][j]), res[t]["warnings"],
+                    _method_label(res[t])))
     return out
+
+
+def _method_label(res):
+    """'full-field (why)' or 'screening (why)' for a task's result."""
+    m = res.get("method", "auto")
+    kind = "full-field" if m == "full-field" else ("screening" if m == "auto" else m)
+    return f"{kind}: {res.get('reason', '')}".rstrip(": ")
 
 
 #: Keys of an ``[[alternative]]`` table of a scenario file.

@@ -514,10 +514,11 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
     cases = list(dict.fromkeys(keys))
     solved = _run_cases(sc, cases, method, workers, progress, executor)
     where = {c: i for i, c in enumerate(cases)}
-    for _, _, ws in solved:
-        for x in ws:
+    for sol in solved:
+        for x in sol[2]:
             if x not in warnings:
                 warnings.append(x)
+    methods = list(dict.fromkeys(sol[3] for sol in solved if len(sol) > 3))
 
     case_of = np.array([where[k] for k in keys])
     kd = np.array([s[0] for s in solved])[case_of]             # (rows, points)
@@ -583,7 +584,7 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
                    cautions=CAUTION_SHORT, title=scenario.title,
                    scenario=str(scenario.path or ""), arm=arm,
                    move=None if move is None else float(move), entrance_width=width,
-                   warnings=list(warnings)),
+                   warnings=list(warnings), methods=methods),
     )
     result["sector"].attrs.update(long_name="sector centre (direction the waves come "
                                             "from, degrees true)", units="degree")

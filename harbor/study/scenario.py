@@ -101,6 +101,17 @@ class Scenario:
     seas : tuple of Sea
     points : tuple of harbor.geometry.layout.Point
     grid : GridSpec
+    bathymetry : harbor.geometry.bathymetry.Bathymetry or None
+        Depths over the site (work frame); None: the constant ``site.depth``.
+    reflection : dict
+        Reflection coefficient K_r (0 fully absorbing to 1 vertical wall) by arm or
+        land name; a land name may map to a tuple with one K_r per edge of its stored
+        outline (edge i joins vertex i and i + 1). Names not listed reflect fully.
+        The form :class:`harbor.solver.fullfield.HarbourModel` takes.
+    footprints : dict
+        Arm name -> footprint width (m) of arms given one (others are thin).
+    method : str
+        One of :data:`METHODS` (default ``"auto"``).
     """
 
     path: str
@@ -110,6 +121,10 @@ class Scenario:
     seas: tuple = field(default_factory=tuple)
     points: tuple = field(default_factory=tuple)
     grid: GridSpec | None = None
+    bathymetry: object = None
+    reflection: dict = field(default_factory=dict)
+    footprints: dict = field(default_factory=dict)
+    method: str = "auto"
 
     def sea(self, name: str, key: str = "sea") -> Sea:
         """Return the sea state called ``name``.
@@ -150,11 +165,12 @@ class Scenario:
 MAX_GRID_POINTS = 4_000_000
 
 _KEYS = {
-    "top": ("title", "site", "arm", "land", "sea", "point", "grid",
+    "top": ("title", "method", "site", "bathymetry", "arm", "land", "sea", "point", "grid",
             "alternative"),  # layout alternatives: read by harbor.study.alternatives
     "site": ("crs", "depth", "g"),
-    "arm": ("name", "line", "rooted"),
-    "land": ("name", "outline"),
+    "bathymetry": ("file", "crs", "variable", "positive", "still_water_level"),
+    "arm": ("name", "line", "rooted", "reflection", "footprint"),
+    "land": ("name", "outline", "reflection"),
     "sea": ("name", "kind", "height", "period", "from", "spreading", "spectrum",
             "peak_period", "gamma"),
     "point": ("name", "at", "limit"),
@@ -163,6 +179,13 @@ _KEYS = {
 _KINDS = ("regular", "random")
 _SPECTRA = ("bretschneider-mitsuyasu", "jonswap")
 _ROOTED = ("start", "end", "both", "none")
+#: Values of the top-level ``method`` key (and of ``--method``): ``auto`` chooses per sea
+#: state (:func:`harbor.solver.agitation.choose_method`); ``screening`` the classical
+#: methods' own choice; ``full-field`` the mild-slope finite-element engine; the others
+#: name one screening method, or (``field``) the constant-depth finite-element check.
+METHODS = ("auto", "screening", "full-field", "general", "superposition", "exact", "field")
+#: Largest breakwater footprint width accepted (m).
+MAX_FOOTPRINT = 500.0
 
 
 class _Reader:
@@ -372,6 +395,8 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
     r.check_keys(data, "top", None)
     title = r.string(data, "title", None, required=False,
                      default=Path(path).stem if path else "untitled")
+    method = r.string(data, "method", None, required=False, default="auto",
+                      choices=METHODS)
     crs_code, depth, g, lonlat = _read_site(r, data)
     # tables that name a layout file (GIS layer, DXF drawing) become plain tables here
     from harbor.study.layout_files import expand_references
@@ -391,8 +416,94 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
     layout, points, allxy = _build_layout(r, site, work, raw_arms, raw_lands, raw_points)
     grid = _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g,
                       scale=float(site.scale_factor))
+    reflection, footprints = _read_walls(r, arm_ts_of(data), data.get("land", []) or [],
+                                         raw_lands, layout, points, raw_points)
+    bath = None
+    if "bathymetry" in data:
+        from harbor.study.bathymetry_file import read_bathymetry
+
+        bath = read_bathymetry(r, data["bathymetry"], path, site, crs_code, layout, points)
     return Scenario(path=str(path) if path else "", title=title, site=site,
-                    layout=layout, seas=tuple(seas), points=tuple(points), grid=grid)
+                    layout=layout, seas=tuple(seas), points=tuple(points), grid=grid,
+                    bathymetry=bath, reflection=reflection, footprints=footprints,
+                    method=method)
+
+
+def arm_ts_of(data):
+    """The ``[[arm]]`` tables of a parsed scenario (already checked to be tables)."""
+    return list(data.get("arm", []) or [])
+
+
+def _read_walls(r, arm_ts, land_ts, raw_lands, layout, points, raw_points):
+    """``reflection`` of arms and land, ``footprint`` of arms.
+
+    Returns
+    -------
+    reflection : dict
+        As :attr:`Scenario.reflection`; a per-edge land list is mapped from the edges
+        as written onto the stored outline's edges (nearest written edge).
+    footprints : dict
+    """
+    refl, feet = {}, {}
+    for i, (t, a) in enumerate(zip(arm_ts, layout.arms)):
+        where = _label("arm", t, i)
+        if "reflection" in t:
+            refl[a.name] = r.number(t, "reflection", where, lo=0.0, hi=1.0)
+        if "footprint" in t:
+            w = r.number(t, "footprint", where, positive=True)
+            if w > MAX_FOOTPRINT:
+                raise r.err(f"must be at most {MAX_FOOTPRINT:g} m (the breakwater's width "
+                            f"at the still-water level), got {w:g}", where, "footprint")
+            feet[a.name] = w
+    for i, (t, (where, name, raw), land) in enumerate(zip(land_ts, raw_lands, layout.lands)):
+        if "reflection" not in t:
+            continue
+        v = t["reflection"]
+        if isinstance(v, (list, tuple)):
+            n_written = len(raw) - (1 if len(raw) > 3 and np.allclose(raw[0], raw[-1]) else 0)
+            if len(v) != n_written:
+                raise r.err(f"give one reflection coefficient per edge of the outline "
+                            f"({n_written} edges: edge i runs from vertex i to vertex i + 1, "
+                            f"the last back to the first), got {len(v)}", where,
+                            "reflection")
+            vals = [r.number({"reflection": x}, "reflection", where, lo=0.0, hi=1.0)
+                    for x in v]
+            refl[land.name] = _edges_onto_outline(vals, raw, land.outline, r, where)
+        else:
+            refl[land.name] = r.number(t, "reflection", where, lo=0.0, hi=1.0)
+    if feet and points:
+        import shapely
+
+        for a in layout.arms:
+            if a.name not in feet:
+                continue
+            foot = shapely.buffer(a.geometry, 0.5 * feet[a.name], cap_style="flat")
+            for (pw, pn, _, _), p in zip(raw_points, points):
+                if shapely.intersects_xy(foot, *p.at):
+                    raise r.err(f"lies on the {feet[a.name]:g} m footprint of arm "
+                                f"'{a.name}' (move the point into the water)", pw, "at")
+    return refl, feet
+
+
+def _edges_onto_outline(vals, raw, outline, r, where):
+    """Per-edge K_r as written -> per edge of the stored (cleaned, work-frame) outline."""
+    # written edges are in the scenario CRS and the stored outline in the work frame:
+    # match them by order along the ring, which the reader keeps (duplicates dropped)
+    ring = np.asarray(outline.exterior.coords)[:-1]
+    n = len(ring)
+    if n == len(vals):
+        return tuple(float(v) for v in vals)
+    # vertices were dropped as duplicates: an edge of zero length carried no K_r
+    aw = np.asarray(raw, float)
+    if len(aw) > 3 and np.allclose(aw[0], aw[-1]):
+        aw = aw[:-1]
+    d = np.hypot(*(np.roll(aw, -1, axis=0) - aw).T)
+    kept = [v for v, dd in zip(vals, d) if dd > 0]
+    if len(kept) != n:
+        raise r.err(f"the outline has {n} distinct edges once repeated vertices are "
+                    f"dropped; give one reflection coefficient per distinct edge", where,
+                    "reflection")
+    return tuple(float(v) for v in kept)
 
 
 def _read_site(r, data):

@@ -535,22 +535,31 @@ class HarbourModel:
 
     def _coast(self, water, slits, segs, krs, gam, outer, L0, o, kr_of):
         """The straight coast where land or walls leave the total-field box, if any."""
-        ringzone = shapely.box(*outer).difference(shapely.box(*gam))
+        # the coast where it leaves the total-field box: within the exterior ring, not
+        # the absorbing layer beyond it (where the far side of a land strip may lie)
+        rw = max(0.25 * L0, 3.0 * L0 / self.ppw)
+        inner = (gam[0] - rw, gam[1] - rw, gam[2] + rw, gam[3] + rw)
+        ringzone = shapely.box(*inner).difference(shapely.box(*gam))
         bnd = shapely.boundary(water)
         pieces = [shapely.intersection(bnd, ringzone)]
         for s in slits:
             pieces.append(shapely.intersection(shapely.LineString(s), ringzone))
         ob = shapely.box(*outer).exterior
+        gring = shapely.box(*gam).exterior
         segl = []
         for pc in pieces:
             for g in shapely.get_parts(pc):
                 if g.geom_type not in ("LineString", "LinearRing"):
                     continue
+                if shapely.distance(g, gring) > 1e-6 * L0:
+                    continue  # an islet in the ring: it does not leave the box
                 c = np.asarray(g.coords)
                 for a, b in zip(c[:-1], c[1:]):
                     mid = 0.5 * (a + b)
-                    if shapely.distance(shapely.Point(mid), ob) < 1e-6 * L0:
-                        continue  # the edge of the mesh, not a coast
+                    if shapely.distance(shapely.Point(mid), ob) < 1e-6 * L0 or \
+                            shapely.distance(shapely.Point(mid), shapely.box(*inner).exterior) \
+                            < 1e-6 * L0:
+                        continue  # the edge of the ring, not a coast
                     if np.hypot(*(b - a)) > 1e-9 * L0:
                         segl.append((a, b))
         if not segl:
