@@ -11,7 +11,8 @@ For every grid spacing it times, in one process and side by side:
   the direction-free geometry (visibility, basin, blend), and the rest of ``solve``
   (grid, land mask, validity);
 * ``harbor map`` end to end (``solve`` of every sea state + ``write_all``), with the
-  output stage apart and the number of arm-mask computations.
+  output stage apart and the time spent in the arm mask;
+* with ``--climate``, ``harbor climate`` on the demo's climate table (old, new, twice).
 
 "old" is the code before the fused kernels, reached in the same process through the
 switches it kept: ``harbor.solver.random.FUSED = False`` (per-component numpy path),
@@ -137,12 +138,20 @@ def time_map(sc, old):
     return t2 - t0, t1 - t0, t2 - t1, _calls["arm_mask"], _clock["arm_mask"]
 
 
+def _demo_climate():
+    from pathlib import Path
+
+    return str(Path(__file__).resolve().parents[1] / "scenarios" / "demo-climate.csv")
+
+
 def main(argv=None):
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--spacing", type=float, nargs="+", default=[5.0, 2.5, 1.25])
     ap.add_argument("--old-up-to", type=float, default=2.5,
                     help="run the old code only at spacings >= this (m)")
     ap.add_argument("--no-map", action="store_true", help="time harbor.solve only")
+    ap.add_argument("--climate", action="store_true",
+                    help="also time harbor climate on the demo table, old and new")
     ap.add_argument("--blas", action="store_true",
                     help="also time the new random seas with BLAS at its default threads")
     args = ap.parse_args(argv)
@@ -184,6 +193,17 @@ def main(argv=None):
                 print(f"harbor map ({'old' if old else 'new'}): {tot:.1f} s = solve {ts:.1f} s "
                       f"+ outputs {to:.1f} s (arm mask: {n_mask} calls, {t_mask:.2f} s)")
         print(f"load average now: {os.getloadavg()[0]:.1f}")
+    if args.climate:
+        from harbor.study.climate import climate_downtime, read_climate
+
+        sc = harbor.load_scenario(harbor.cli.demo_path())
+        table = read_climate(_demo_climate())
+        for old in (True, False, True, False):
+            with code(old):
+                t0 = time.perf_counter()
+                climate_downtime(sc, table)
+                print(f"harbor climate on the demo table ({'old' if old else 'new'}): "
+                      f"{time.perf_counter() - t0:.1f} s")
     rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
     print(f"\npeak RSS of the whole run: {rss:.0f} MB")
 
