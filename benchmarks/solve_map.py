@@ -162,6 +162,8 @@ def main(argv=None):
     warm = scenario_at(40.0)
     for old in (True, False):
         time_solve(warm, old)
+    if not args.no_map:
+        time_map(warm, False)       # first use of matplotlib, fonts, GDAL drivers
     print(f"load average at start: {os.getloadavg()[0]:.1f}")
     for h in args.spacing:
         sc = scenario_at(h)

@@ -445,6 +445,24 @@ def semi_infinite_fused(x, y, k, alpha):
     Returns
     -------
     numpy.ndarray of complex
+        Field normalised by the incident amplitude.
+
+    Notes
+    -----
+    With :math:`\theta = \arg(x - iy)`, :math:`\theta_0 = \pi - \alpha`,
+    :math:`\sqrt{2kr}\cos\tfrac{\theta \mp \theta_0}{2} = \sqrt{k}\,(\pm_y\sqrt{r + x}
+    \cos\tfrac{\theta_0}{2} \pm \sqrt{r - x}\sin\tfrac{\theta_0}{2})` (the sign of
+    the first root negative for y > 0), so no arctangent is needed;
+    :math:`u = \chi_1 e^{ik(x\cos\alpha + y\sin\alpha)} + \chi_2 e^{ik(x\cos\alpha -
+    y\sin\alpha)} - \sum_j \operatorname{sgn}(s_j) e^{ikr} A(|s_j|)`.
+
+    References
+    ----------
+    .. [1] Sommerfeld, A. (1896). Mathematische Theorie der Diffraction.
+       *Mathematische Annalen*, 47, 317-374.
+    .. [2] Penney, W. G., & Price, A. T. (1952). The diffraction theory of sea waves and
+       the shelter afforded by breakwaters. *Philosophical Transactions of the Royal
+       Society of London A*, 244(882), 236-253.
     """
     theta0 = np.pi - alpha
     out = np.empty(x.size, complex)
