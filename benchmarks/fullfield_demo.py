@@ -36,6 +36,8 @@ def main(argv=None):
     ap.add_argument("--nfreq", type=int, default=12)
     ap.add_argument("--ndir", type=int, default=36)
     ap.add_argument("--old", action="store_true", help="also time today's solver")
+    ap.add_argument("--cap", type=float, default=None,
+                    help="max_unknowns of the random sea (default: the engine's)")
     a = ap.parse_args(argv)
     sc = harbor.load_scenario(a.scenario)
     site = sc.site
@@ -72,6 +74,11 @@ def main(argv=None):
         comp = random_components(rs.height, rs.period, rs.spreading, n_freq=a.nfreq,
                                  n_dir=a.ndir)
         model2 = HarbourModel(sc.layout, site.depth, points=pts, grid=(gx, gy), g=site.g)
+        kw = {} if a.cap is None else {"max_unknowns": int(a.cap) if a.cap > 0 else None}
+        est = model2.estimate(1.0 / np.unique(comp.frequency), n_directions=a.ndir,
+                              **({"max_unknowns": model2.random.__defaults__[1]} | kw))
+        print(f"  estimate: {est.total_seconds:.0f} s, peak {est.max_peak_bytes / 1e9:.1f} GB, "
+              f"{int(est.capped.sum())} bands capped at {est.solve_periods.min():.2f} s")
         t4 = time.perf_counter()
 
         def prog(done, total):
@@ -79,13 +86,15 @@ def main(argv=None):
                   f"peak {peak_mb():.0f} MB", flush=True)
 
         res = model2.random(comp, float(np.degrees(site.travel_angle(rs.from_deg))),
-                            progress=prog)
+                            progress=prog, **kw)
         t5 = time.perf_counter()
         nb = res.info["bands"]
         print(f"random sea '{rs.name}' ({a.nfreq} x {a.ndir}): {t5 - t4:.0f} s; largest "
               f"band {max(b['unknowns'] for b in nb)} unknowns; peak memory "
               f"{peak_mb():.0f} MB")
         print("  K_eff at points:", np.round(res.kd_points, 3))
+        print("  T_m02 ratio at points:", np.round(res.ratio_points, 3))
+        print("  notices:", [str(n) for n in model2.notices])
 
 
 if __name__ == "__main__":

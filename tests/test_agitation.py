@@ -383,3 +383,27 @@ def test_unknown_method_is_refused_with_the_choices(tmp_path, capsys):
     assert main(["check", str(p)]) == 2
     err = capsys.readouterr().err
     assert "full-field" in err and "key 'method'" in err
+
+
+def test_climate_with_reflecting_walls_goes_full_field_once_per_period(tmp_path, monkeypatch):
+    # short bands at a small mesh: the test is of the route, not of the band cap
+    monkeypatch.setattr("harbor.solver.agitation.BAND_CAP", 20_000)
+    # two directions of one (period, spreading): one task, one set of factorisations; the
+    # downtime is that of the random seas solved one by one (Goda 2010: K_eff does not
+    # depend on the height, so one solve per case at unit height)
+    body = _cove(extra_land="reflection = 0.2")
+    sc = load_scenario(_write(tmp_path, body))
+    clim = tmp_path / "clim.csv"
+    clim.write_text("height,period,from,percent\n1.0,12.0,0.0,40\n2.0,12.0,20.0,30\n"
+                    "1.5,12.0,0.0,30\n")
+    from harbor.study.climate import climate_downtime
+    from harbor.study.scenario import Sea
+
+    res = climate_downtime(sc, clim, workers=1)
+    assert any(m.startswith("full-field") for m in res.attrs["methods"])
+    one = harbor.solve(sc.__class__(**{**sc.__dict__, "seas": (
+        Sea("a", "random", 1.0, 12.0, 20.0, spreading=10.0),)}), grid=False)
+    assert str(one.sea_method.values[0]) == METHOD_FULL_FIELD
+    np.testing.assert_allclose(res.kd.values[1], one.point_kd.values[0], atol=1e-6)
+    np.testing.assert_allclose(res.point_height.values[:, 0],
+                               res.kd.values[:, 0] * np.array([1.0, 2.0, 1.5]), rtol=1e-12)

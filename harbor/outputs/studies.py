@@ -369,6 +369,9 @@ def downtime_text(result) -> str:
     lines.append("-" * len(head))
     lines.append(f"{'time from sector':<18}{'':>7}{occ.sum():>8.2f}  |"
                  + "".join(f"{occ[c]:>9.2f}" for c in order))
+    methods = list(result.attrs.get("methods", []) or [])
+    if methods:
+        lines.append("method: " + "; ".join(str(m) for m in methods))
     return "\n".join(lines)
 
 

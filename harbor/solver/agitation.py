@@ -33,6 +33,19 @@ MAX_AUTO_UNKNOWNS = 3_000_000
 #: concerned.
 INVALID_GRID_SHARE = 0.05
 
+#: Largest mesh (unknowns) of one frequency band of a random sea; shorter bands are
+#: solved at the period that fits (:meth:`harbor.solver.fullfield.HarbourModel.random`).
+#: None: the engine's default.
+BAND_CAP = None
+
+
+def band_cap():
+    """The band cap in force (unknowns)."""
+    from harbor.solver.fullfield import harbour as _h
+
+    return BAND_CAP if BAND_CAP is not None else getattr(_h, "DEFAULT_MAX_UNKNOWNS", None)
+
+
 #: Reason sentences (one place, used by results, maps and ``check``).
 REASONS = {
     "named": "named in the scenario (method = \"{m}\")",
@@ -116,7 +129,7 @@ def sea_periods(sea, n_freq=None):
     return np.sort(1.0 / np.unique(np.asarray(comps.frequency)))
 
 
-def estimate(model, periods):
+def estimate(model, periods, random=False, n_directions=1):
     """Cost of full-field solutions of some periods, before any is solved.
 
     Parameters
@@ -124,44 +137,26 @@ def estimate(model, periods):
     model : harbor.solver.fullfield.HarbourModel
     periods : array_like
         Periods (s).
+    random : bool
+        The periods are the bands of a random sea: bands whose mesh would exceed the
+        engine's cap (:data:`harbor.solver.fullfield.harbour.DEFAULT_MAX_UNKNOWNS`) are
+        solved at the capped period, as :meth:`HarbourModel.random` does.
+    n_directions : int
+        Directions (back-substitutions) per period.
 
     Returns
     -------
     dict
-        ``unknowns`` (largest factorisation), ``memory`` (bytes, largest factorisation),
-        ``seconds`` (all periods, this machine when quiet), ``periods``.
+        ``unknowns`` (largest factorisation), ``memory`` (bytes, the largest peak),
+        ``seconds`` (all periods, this machine when quiet), ``periods``, ``capped``
+        (number of bands solved at the capped period).
     """
     periods = [float(t) for t in np.atleast_1d(periods)]
-    if hasattr(model, "estimate"):
-        e = model.estimate(periods)
-        if isinstance(e, dict) and "total" in e:
-            tot = e["total"]
-            return {"unknowns": int(tot.get("unknowns", 0)),
-                    "memory": float(tot.get("memory", tot.get("memory_bytes", 0.0))),
-                    "seconds": float(tot.get("seconds", 0.0)), "periods": periods}
-    # from the area of the model and the local wavelength: a P2 mesh of edge L / ppw has
-    # about 2.3 A / h^2 unknowns; the factor (nested dissection) about 90 non-zeros per
-    # unknown at 1e5 unknowns, growing like log N; 16 bytes each plus indices.
-    # Calibrated on benchmarks/fullfield_demo.py and fullfield_scaling.py.
-    from harbor.waves.dispersion import wavelength
-
-    x0, y0, x1, y1 = model.region
-    h = model.bathymetry
-    depth = float(model._h0_given) if model._h0_given else float(
-        np.median(h.depth(np.linspace(x0, x1, 9), np.linspace(y0, y1, 9))))
-    biggest, mem, secs = 0, 0.0, 0.0
-    for t in periods:
-        L = float(wavelength(t, max(depth, 0.5), model.g))
-        pad = 2 * (model.margin + 0.25 + model.layer_wl) * L
-        area = (x1 - x0 + pad) * (y1 - y0 + pad)
-        n = 2.3 * area / (L / model.ppw) ** 2
-        nnz = n * 90.0 * max(1.0, np.log10(max(n, 10.0)) / 5.0) ** 2
-        m = nnz * 20.0
-        s = 1.0 + 4.5e-5 * n + 1.5e-7 * nnz
-        biggest = max(biggest, int(n))
-        mem = max(mem, m)
-        secs += s
-    return {"unknowns": biggest, "memory": mem, "seconds": secs, "periods": periods}
+    cap = band_cap() if random else None
+    e = model.estimate(periods, n_directions=n_directions, max_unknowns=cap)
+    return {"unknowns": int(np.max(e.unknowns)), "memory": float(e.max_peak_bytes),
+            "seconds": float(e.total_seconds), "periods": periods,
+            "capped": int(np.sum(e.capped))}
 
 
 def _validity_findings(scenario, sea, wet_xy, point_xy):
@@ -243,7 +238,8 @@ def choose_method(scenario, sea, method=None, point_xy=None, wet_xy=None, model=
     why = reasons[0][1]
     if model is None:
         model = model_for(scenario, points=np.concatenate([point_xy, wet_xy]))
-    est = estimate(model, sea_periods(sea))
+    est = estimate(model, sea_periods(sea), random=sea.kind == "random",
+                   n_directions=1 if sea.kind == "regular" else _n_dir())
     budget = MEMORY_SHARE * machine_memory() if memory is None else float(memory)
     if est["memory"] > budget or est["unknowns"] > MAX_AUTO_UNKNOWNS:
         size = (f"about {est['unknowns']:,} unknowns and {est['memory'] / 2**30:.1f} GB "
@@ -252,6 +248,12 @@ def choose_method(scenario, sea, method=None, point_xy=None, wet_xy=None, model=
         return Choice("auto", REASONS["too-large"].format(why=short, size=size),
                       needed=why, estimate=est)
     return Choice("full-field", why, estimate=est)
+
+
+def _n_dir():
+    from harbor.waves.spectra import DEFAULT_N_DIR
+
+    return DEFAULT_N_DIR
 
 
 def ground_bathymetry(scenario):

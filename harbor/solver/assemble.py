@@ -190,7 +190,7 @@ def plan(scenario, sea=None, method="auto", grid=True):
                                     wet_xy=wet_xy, model=model)
         if c.full_field and c.estimate is None:
             c = dataclasses.replace(c, estimate=agitation.estimate(
-                model, agitation.sea_periods(s)))
+                model, agitation.sea_periods(s), random=s.kind == "random"))
         out.append((s, c))
     return out
 
@@ -271,7 +271,9 @@ def solve_sea_full_field(ground, sea, model, progress=None):
         comps = random_components(sea.height, sea.period, s_max=sea.spreading,
                                   spectrum=sea.spectrum, peak_period=sea.peak_period,
                                   gamma=sea.gamma)
-        res = model.random(comps, direction, progress=progress)
+        from harbor.solver.agitation import band_cap
+
+        res = model.random(comps, direction, progress=progress, max_unknowns=band_cap())
         n = len(model.points)
         kd, ratio = res.kd_points[:n], res.ratio_points[:n]
         w = float(np.sum(comps.weight))
@@ -557,6 +559,11 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
                 valid[i][wet] = ~bad[:nw]
                 pvalid[i] = ~bad[nw:]
             more += off
+        if choice.needed:
+            # the full-field method was needed here and not run: no value of this sea
+            # state is inside a measured validity
+            valid[i][:] = False
+            pvalid[i][:] = False
         for w in more:
             w = as_notice(w).for_sea(s.name)
             if w.code == "near-head" and w.point in pnames:

@@ -72,6 +72,71 @@ def _task_choice(scenario, method, task):
     return first
 
 
+#: Longest full-field climate study (seconds, estimated) that ``auto`` runs; beyond it
+#: the screening methods answer, flagged (``--method full-field`` runs it anyway).
+CLIMATE_FULL_FIELD_BUDGET = 1800.0
+
+
+def plan_tasks(shared, tasks, budget=CLIMATE_FULL_FIELD_BUDGET):
+    """Decide the method of every task of a study before any is solved.
+
+    Parameters
+    ----------
+    shared : dict
+        As for :func:`solve_group`.
+    tasks : list of dict
+        Gains ``choice`` (:class:`harbor.solver.agitation.Choice`) each.
+    budget : float
+        Seconds: when ``auto`` would send tasks to the full-field method for longer than
+        this in all (estimated), those tasks go to the screening methods instead, and
+        their results say so.
+
+    Returns
+    -------
+    dict
+        ``full_field`` (tasks), ``seconds`` (estimated, full-field tasks), ``memory``
+        (bytes, largest), ``downgraded`` (bool).
+    """
+    import dataclasses as _dc
+
+    from harbor.solver import agitation
+    from harbor.solver.agitation import model_for
+
+    models = {}
+    total, mem, n_ff = 0.0, 0.0, 0
+    for t in tasks:
+        sc = shared["scenarios"][t["alternative"]]
+        c = _task_choice(sc, shared["method"], t)
+        if c.full_field:
+            m = models.get(t["alternative"])
+            if m is None:
+                m = models[t["alternative"]] = model_for(sc)
+            e = agitation.estimate(m, agitation.sea_periods(_task_sea(t, t["directions"][0])),
+                                   random=True, n_directions=len(t["directions"])
+                                   * agitation._n_dir())
+            c = _dc.replace(c, estimate=e)
+            total += e["seconds"]
+            mem = max(mem, e["memory"])
+            n_ff += 1
+        t["choice"] = c
+    downgraded = False
+    auto = shared["method"] in (None, "auto") and all(
+        sc.method == "auto" for sc in shared["scenarios"].values())
+    if auto and n_ff and total > budget:
+        downgraded = True
+        for t in tasks:
+            c = t["choice"]
+            if c.full_field:
+                why = c.reason.split(": ", 1)[-1].split(" (")[0]
+                t["choice"] = agitation.Choice(
+                    "auto", agitation.REASONS["too-large"].format(
+                        why=why, size=f"about {total / 60:.0f} min of full-field solves for "
+                                      f"the whole climate; --method full-field runs them"),
+                    needed=c.reason, estimate=c.estimate)
+    return {"full_field": 0 if downgraded else n_ff, "seconds": total, "memory": mem,
+            "downgraded": downgraded}
+
+
 def _full_field_group(scenario, task, choice):
     """K' at the points for every direction of a task by the full-field method: one
     factorisation per frequency band for all the directions."""
@@ -83,9 +148,11 @@ def _full_field_group(scenario, task, choice):
     ground = site.ground_site() if not site.is_lonlat else site
     comps = random_components(1.0, task["period"], s_max=task["spreading"])
     dirs = [float(np.degrees(ground.travel_angle(d))) for d in task["directions"]]
-    res = model.random(comps, dirs)
+    from harbor.solver.agitation import band_cap
+
+    res = model.random(comps, dirs, max_unknowns=band_cap())
     if not isinstance(res, (list, tuple)):  # an engine that takes one direction at a time
-        res = [res] + [model.random(comps, d) for d in dirs[1:]]
+        res = [res] + [model.random(comps, d, max_unknowns=band_cap()) for d in dirs[1:]]
     w = float(np.sum(comps.weight))
     kd = [r.kd_points.copy() for r in res]
     reach = [float(r.reaching / w) if w > 0 else 0.0 for r in res]
@@ -127,7 +194,7 @@ def solve_group(shared, task):
     """
     sc = shared["scenarios"][task["alternative"]]
     kd, reach, warns = [], [], []
-    choice = _task_choice(sc, shared["method"], task)
+    choice = task.get("choice") or _task_choice(sc, shared["method"], task)
     if choice.full_field:
         kd, reach, warns = _full_field_group(sc, task, choice)
     else:
@@ -291,6 +358,7 @@ def solve_cases(scenario, cases, method="auto", executor=None, workers=None,
     p, f, s = (np.array([c[i] for c in cases], float) for i in range(3))
     tasks, _, order, case_at = group_tasks("", p, f, s)
     shared = {"scenarios": {"": scenario}, "method": method}
+    plan_tasks(shared, tasks)
     own = executor is None
     if own:
         kind = "serial" if workers == 1 or len(tasks) < 2 else "threads"
@@ -601,6 +669,7 @@ def compare_alternatives(scenarios, table, method="auto", names=None, executor=N
         tasks.extend(ts)
         where.extend((a, r) for r in rows_of)
     shared = {"scenarios": limited, "method": method}
+    plan_tasks(shared, tasks)
     own = executor is None
     if own:
         from harbor.study.executor import make_executor

@@ -532,12 +532,20 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
 
     from harbor.solver.assemble import BREAKING_RATIO
 
-    hb = BREAKING_RATIO * scenario.site.depth
-    over = heights > hb
+    from harbor.solver.agitation import has_survey
+
+    if has_survey(scenario):
+        xy = np.array([p.at for p in limited], float).reshape(-1, 2)
+        hb = BREAKING_RATIO * scenario.bathymetry.depth(xy[:, 0], xy[:, 1])
+        hb_text = "0.78 h (local depth)"
+    else:
+        hb = BREAKING_RATIO * scenario.site.depth
+        hb_text = f"0.78 h = {hb:.2f} m"
+    over = heights > np.asarray(hb)[None, ...] if np.ndim(hb) else heights > hb
     if over.any():
         bad = tab.index[over.any(axis=1)]
         listed = ", ".join(str(r) for r in bad[:10]) + (" ..." if len(bad) > 10 else "")
-        warnings.append(f"heights above the depth-limited breaking height 0.78 h = {hb:.2f} m "
+        warnings.append(f"heights above the depth-limited breaking height {hb_text} "
                         f"in climate rows {listed} (flagged, not changed: waves there "
                         "would break)")
     far = reach < 0.5

@@ -9,8 +9,9 @@ The Python API for callers is :class:`HarbourModel` and :func:`full_field`
 """
 
 from harbor.solver.fullfield.engine import robin_alpha, robin_reflection
-from harbor.solver.fullfield.harbour import (FieldNotice, FieldResult, HarbourModel,
+from harbor.solver.fullfield.harbour import (FieldEstimate, FieldNotice, FieldResult,
+                                             HarbourModel,
                                              RandomFieldResult, full_field)
 
-__all__ = ["HarbourModel", "full_field", "FieldNotice", "FieldResult",
+__all__ = ["HarbourModel", "full_field", "FieldEstimate", "FieldNotice", "FieldResult",
            "RandomFieldResult", "robin_alpha", "robin_reflection"]

@@ -52,7 +52,7 @@ def robin_alpha(kr):
     return (1.0 - kr) / (1.0 + kr)
 
 
-def robin_reflection(kr, angle):
+def robin_reflection(kr, angle, attack=0.0):
     r"""Reflection coefficient of the condition of :func:`robin_alpha` at an angle (-).
 
     Parameters
@@ -61,6 +61,10 @@ def robin_reflection(kr, angle):
         Nominal K_r (normal incidence) (-).
     angle : float or array_like
         Angle of incidence from the boundary normal (rad), in [0, pi/2].
+    attack : float or array_like, optional
+        Main angle of attack the wall is tuned to (rad from the normal): the
+        admittance is :math:`\alpha\cos\theta_a`, which reflects K_r exactly at
+        :math:`\theta = \theta_a` (Isaacson & Qu 1990). Default 0 (normal incidence).
 
     Returns
     -------
@@ -71,8 +75,9 @@ def robin_reflection(kr, angle):
     Notes
     -----
     With :math:`\eta = e^{i k \mathbf{d}\cdot\mathbf{x}} + R e^{i k \mathbf{d}'\cdot
-    \mathbf{x}}` and :math:`\partial_n \eta = i k \alpha \eta` on the boundary,
-    :math:`R = (\cos\theta - \alpha) / (\cos\theta + \alpha)`; R = 1 for
+    \mathbf{x}}` and :math:`\partial_n \eta = i k \beta \eta` on the boundary,
+    :math:`R = (\cos\theta - \beta) / (\cos\theta + \beta)` with
+    :math:`\beta = \alpha\cos\theta_a`; R = 1 for
     :math:`\alpha = 0` at any angle. The condition absorbs best at normal incidence and
     reflects more, with reversed sign, towards grazing incidence.
 
@@ -81,7 +86,7 @@ def robin_reflection(kr, angle):
     Isaacson, M. and Qu, S. (1990). Waves in a harbour with partially reflecting
     boundaries. Coastal Engineering 14(3), 193-214.
     """
-    a = robin_alpha(kr)
+    a = robin_alpha(kr) * np.cos(np.asarray(attack, float))
     c = np.cos(np.asarray(angle, float))
     with np.errstate(invalid="ignore", divide="ignore"):
         r = (c - a) / (c + a)
@@ -130,6 +135,9 @@ class Space:
     facet_kr : callable
         ``facet_kr(mid, normal)`` -> K_r (n_facets,) for the boundary facets that are
         not on the outer rectangle, given their midpoints (2, n) and outward normals.
+    facet_factor : callable, optional
+        The same for the admittance factor cos(angle of attack) of each facet (1:
+        tuned to normal incidence); default 1 everywhere.
 
     Notes
     -----
@@ -139,7 +147,7 @@ class Space:
     frequency.
     """
 
-    def __init__(self, mesh, layer, facet_kr):
+    def __init__(self, mesh, layer, facet_kr, facet_factor=None):
         from skfem import Basis, ElementTriP2, MeshTri
 
         self.mesh = mesh
@@ -175,6 +183,10 @@ class Space:
         self.wall_normal = nrm
         kr = np.asarray(facet_kr(fm, nrm), float) if self.wall_facets.size else np.zeros(0)
         self.wall_kr = np.clip(kr, 0.0, 1.0)
+        fac = (np.asarray(facet_factor(fm, nrm), float)
+               if facet_factor is not None and self.wall_facets.size
+               else np.ones(self.wall_facets.size))
+        self.wall_factor = np.clip(fac, 0.0, 1.0)
         self.xq = np.asarray(self.basis.global_coordinates())
         self._perm = None
 
@@ -359,7 +371,8 @@ class FrequencySolver:
             fsx = lay.stretch(xf[0], x0, x1, k0)
             fsy = lay.stretch(xf[1], y0, y1, k0)
             st = fsx * ny[:, None] ** 2 + fsy * nx[:, None] ** 2
-            al = robin_alpha(space.wall_kr[absorbing])[:, None]
+            al = (robin_alpha(space.wall_kr[absorbing])
+                  * space.wall_factor[absorbing])[:, None]
 
             @BilinearForm(dtype=np.complex128)
             def robin(u, v, w):

@@ -34,7 +34,33 @@ from harbor.solver.fullfield.engine import FrequencySolver, Layer, Space, robin_
 from harbor.waves.dispersion import wavenumber
 
 __all__ = ["HarbourModel", "FieldNotice", "FieldResult", "RandomFieldResult",
-           "full_field"]
+           "FieldEstimate", "full_field"]
+
+#: Right-hand sides solved together (memory: 3 complex vectors over the dofs each).
+_RHS_CHUNK = 8
+
+#: Calibration of :meth:`HarbourModel.estimate` (fitted to the measurements of
+#: ``benchmarks/fullfield_estimate.py``, docs/full-field.md). Unknowns per element-size
+#: squared of water (P2: about two unknowns per triangle, Triangle's triangles somewhat
+#: smaller than the area bound).
+_EST_UNKNOWNS_PER_S2 = 6.7
+#: Extra unknowns of one graded corner, in units of the corner's unknowns per s^2: the
+#: integral of (1/s^2 - 1/s0^2) over the graded disk of s = s0 clip(d / 4 s0, 0.1, 1).
+_EST_CORNER = 32.0 * np.pi * np.log(10.0)
+#: Factor non-zeros = c n log2(n) (nested dissection in 2-D, George 1973).
+_EST_FILL = 4.8
+#: Bytes per factor non-zero (complex value + SuperLU's row indices).
+_EST_BYTES_PER_NNZ = 20.0
+#: Peak resident memory = base + (SuperLU's working copy while it grows the factor)
+#: x factor + bytes per unknown (mesh, basis, matrices, right-hand sides).
+_EST_BASE_BYTES = 2.0e8
+_EST_PEAK_PER_FACTOR = 2.0
+_EST_BYTES_PER_UNKNOWN = 3000.0
+#: Seconds per unknown of meshing and assembly, and factorisation seconds = c n^1.5.
+_EST_SECONDS_PER_UNKNOWN = 4.5e-5
+_EST_FACTOR_SECONDS = 6.0e-8
+#: Seconds per factor non-zero of one back-substitution.
+_EST_SOLVE_SECONDS_PER_NNZ = 9.0e-9
 
 #: Bed slope above which the mild-slope equation is outside its validity (-), about 1:3
 #: (Booij 1983 found the equation accurate up to slopes of about 1:3).
@@ -42,6 +68,11 @@ MAX_SLOPE = 1.0 / 3.0
 
 #: Default minimum water depth (m): shallower points are dry.
 MIN_DEPTH = 0.3
+
+#: Default largest mesh of one frequency band of a random sea (unknowns): about 1 GB
+#: of factor and half a minute of factorisation on a 2-core laptop
+#: (docs/full-field.md, "Random seas").
+DEFAULT_MAX_UNKNOWNS = 400_000
 
 
 #: The engine's validity notes are the project's one notice type (a str with a code).
@@ -84,11 +115,65 @@ class RandomFieldResult:
 
 
 @dataclass
+class FieldEstimate:
+    """What solving some wave periods will cost, estimated without meshing or factorising.
+
+    Attributes
+    ----------
+    periods : numpy.ndarray, shape (n,)
+        The periods asked for (s).
+    solve_periods : numpy.ndarray, shape (n,)
+        The period each is solved at (s): itself, or the capped period where the mesh
+        of the period itself would exceed ``max_unknowns``.
+    unknowns : numpy.ndarray of int, shape (n,)
+        Unknowns of each period's system.
+    factor_bytes : numpy.ndarray, shape (n,)
+        Memory of each factorisation (bytes), and ``peak_bytes`` the estimated peak
+        resident memory of solving it (mesh, matrices, factor, answers).
+    seconds : numpy.ndarray, shape (n,)
+        Wall-clock seconds of mesh, assembly, factorisation and back-substitutions on
+        an unloaded 2-core machine of 2026 (this one).
+    capped : numpy.ndarray of bool, shape (n,)
+        True where the period is solved at a longer (capped) period.
+    total_unknowns, total_seconds : float
+        Sums over the distinct solve periods (each is factorised once).
+    max_factor_bytes, max_peak_bytes : float
+        Largest single factorisation and largest peak: the memory a random sea needs,
+        since its bands are factorised one at a time and freed.
+    """
+
+    periods: np.ndarray
+    solve_periods: np.ndarray
+    unknowns: np.ndarray
+    factor_bytes: np.ndarray
+    peak_bytes: np.ndarray
+    seconds: np.ndarray
+    capped: np.ndarray
+    total_unknowns: int
+    total_seconds: float
+    max_factor_bytes: float
+    max_peak_bytes: float
+
+
+@dataclass
 class _Coast:
     point: np.ndarray     # on the coast line (local frame, m)
     normal: np.ndarray    # unit normal towards the sea (or either side for a thin wall)
     kr: float
     land_backed: bool
+    factor: float = 1.0
+
+
+@dataclass
+class _Domain:
+    h0: float
+    k0: float
+    L0: float
+    margin: float
+    gam: tuple
+    layer: Layer
+    depth_used: object
+    const: bool
 
 
 @dataclass
@@ -152,6 +237,12 @@ class HarbourModel:
         thickness, in exterior wavelengths.
     g : float, optional
         Gravity (m/s^2).
+    attack : dict, optional
+        Main angle of attack (degrees from the wall normal, in [0, 90)) by arm or land
+        name, a land name may map to one angle per edge: the wall's admittance is
+        multiplied by cos(angle) (Isaacson & Qu 1990), so that it reflects exactly its
+        nominal K_r at that angle instead of at normal incidence
+        (:func:`harbor.solver.fullfield.engine.robin_reflection`).
 
     Notes
     -----
@@ -178,7 +269,7 @@ class HarbourModel:
     def __init__(self, layout, bathymetry=None, points=None, grid=None, reflection=None,
                  footprints=None, exterior_depth=None, still_water_level=0.0,
                  min_depth=MIN_DEPTH, points_per_wavelength=10.0, margin_wavelengths=1.0,
-                 layer_wavelengths=1.5, g=9.81):
+                 layer_wavelengths=1.5, g=9.81, attack=None):
         if bathymetry is None:
             raise InputError("the full-field model needs a bathymetry or a depth",
                              key="depth")
@@ -214,6 +305,19 @@ class HarbourModel:
                 raise InputError(f"reflection names '{key}', which is neither an arm nor a "
                                  f"land polygon", key="reflection")
         self._kr = {k: _kr_value(v, f"'{k}'") for k, v in reflection.items()}
+        self._attack = {}
+        for k, v in dict(attack or {}).items():
+            if k not in names:
+                raise InputError(f"attack names '{k}', which is neither an arm nor a land "
+                                 f"polygon", key="attack")
+            try:
+                a = np.asarray(v, float)
+            except (TypeError, ValueError):
+                a = np.array(np.nan)
+            if not np.all(np.isfinite(a)) or np.any(a < 0) or np.any(a >= 90):
+                raise InputError(f"angle of attack of '{k}' must lie in [0, 90) degrees "
+                                 f"from the wall normal, got {v!r}", key="attack")
+            self._attack[k] = a
         self._footprints = {}
         for k, v in dict(footprints or {}).items():
             if k not in {a.name for a in layout.arms}:
@@ -254,6 +358,7 @@ class HarbourModel:
             h0 = None
         self._h0_given = h0
         self._periods = {}
+        self._domains = {}
         self.notices = []
         self._noted = set()
 
@@ -264,21 +369,32 @@ class HarbourModel:
             self.notices.append(Notice(code, text, point=point, level=level))
 
     def _segments(self):
-        """Reflecting segments in the local frame with their K_r: (segs (n,2,2), kr)."""
+        """Reflecting segments in the local frame: (segs (n,2,2), kr, admittance factor)."""
         o = self.origin
-        segs, krs = [], []
+        segs, krs, fac = [], [], []
+
+        def factor(name, n):
+            v = np.cos(np.radians(np.asarray(self._attack.get(name, 0.0), float))).ravel()
+            if v.size == 1:
+                return np.full(n, v[0])
+            if v.size == n:
+                return v
+            raise InputError(f"'{name}' has {n} edges but {v.size} angles of attack",
+                             key="attack")
         for a in self.layout.arms:
             line = np.asarray(a.line, float) - o
             kr = float(np.asarray(self._kr.get(a.name, self._kr_default)).ravel()[0])
             s = np.stack([line[:-1], line[1:]], axis=1)
             segs.append(s)
             krs.append(np.full(len(s), kr))
+            fac.append(factor(a.name, 1)[0] * np.ones(len(s)))
             if a.name in self._footprints:
                 fp = shapely.buffer(shapely.LineString(line), 0.5 * self._footprints[a.name],
                                     cap_style="flat", join_style="mitre")
                 c = np.asarray(fp.exterior.coords)
                 segs.append(np.stack([c[:-1], c[1:]], axis=1))
                 krs.append(np.full(len(c) - 1, kr))
+                fac.append(np.full(len(c) - 1, factor(a.name, 1)[0]))
         for land in self.layout.lands:
             c = np.asarray(land.outline.exterior.coords) - o
             s = np.stack([c[:-1], c[1:]], axis=1)
@@ -292,26 +408,28 @@ class HarbourModel:
                                  f"{v.size} reflection coefficients", key="reflection")
             segs.append(s)
             krs.append(kr)
+            f = factor(land.name, len(s))
+            fac.append(f)
             for ring in land.outline.interiors:
                 c = np.asarray(ring.coords) - o
                 segs.append(np.stack([c[:-1], c[1:]], axis=1))
                 krs.append(np.full(len(c) - 1, float(kr.mean())))
+                fac.append(np.full(len(c) - 1, float(f.mean())))
         if segs:
-            return np.concatenate(segs), np.concatenate(krs)
-        return np.zeros((0, 2, 2)), np.zeros(0)
+            return np.concatenate(segs), np.concatenate(krs), np.concatenate(fac)
+        return np.zeros((0, 2, 2)), np.zeros(0), np.zeros(0)
 
     def _depth_raw(self, xl, yl):
         o = self.origin
         return self.bathymetry.depth(np.asarray(xl) + o[0], np.asarray(yl) + o[1])
 
     # -- one period ----------------------------------------------------------------
-    def _setup(self, period):
-        import time
-
+    def _domain(self, period):
+        """Exterior depth, wavelength, boxes and the depth used, for one period (cached)."""
         key = round(float(period), 9)
-        if key in self._periods:
-            return self._periods[key]
-        t0 = time.perf_counter()
+        dom = self._domains.get(key)
+        if dom is not None:
+            return dom
         g = self.g
         o = self.origin
         r = np.array(self.region) - np.concatenate([o, o])
@@ -346,8 +464,6 @@ class HarbourModel:
         gam = (r[0] - m, r[1] - m, r[2] + m, r[3] + m)
         inner = (gam[0] - ring, gam[1] - ring, gam[2] + ring, gam[3] + ring)
         layer = Layer(inner=inner, thickness=t)
-        outer = layer.outer
-        outer_box = shapely.box(*outer)
 
         # depth used: the bathymetry inside, blended to h0 over the margin
         const = self.bathymetry.is_constant and abs(
@@ -369,7 +485,27 @@ class HarbourModel:
             w = blend(x, y)
             return np.maximum(h0 + w * (raw - h0), self.min_depth)
 
-        segs, krs = self._segments()
+        dom = _Domain(h0=h0, k0=k0, L0=L0, margin=m, gam=gam, layer=layer,
+                      depth_used=depth_used, const=const)
+        self._domains[key] = dom
+        return dom
+
+    def _setup(self, period):
+        import time
+
+        key = round(float(period), 9)
+        if key in self._periods:
+            return self._periods[key]
+        t0 = time.perf_counter()
+        g = self.g
+        o = self.origin
+        dom = self._domain(period)
+        h0, k0, L0, m, gam = dom.h0, dom.k0, dom.L0, dom.margin, dom.gam
+        layer, depth_used, const = dom.layer, dom.depth_used, dom.const
+        outer = layer.outer
+        outer_box = shapely.box(*outer)
+
+        segs, krs, facs = self._segments()
         # land, footprints and dry ground
         land = shapely.Polygon()
         if self.layout.lands:
@@ -476,14 +612,16 @@ class HarbourModel:
         allsegs = np.concatenate([segs, dry_segs]) if len(dry_segs) else segs
         allkr = np.concatenate([krs, np.full(len(dry_segs), self._kr_dry)]) \
             if len(dry_segs) else krs
+        allfac = np.concatenate([facs, np.ones(len(dry_segs))]) if len(dry_segs) else facs
         kr_of = _nearest_kr(allsegs, allkr, self._kr_default)
-        space = Space(wm, layer, kr_of)
+        fac_of = _nearest_kr(allsegs, allfac, 1.0)
+        space = Space(wm, layer, kr_of, fac_of)
         t1 = time.perf_counter()
         solver = FrequencySolver.build(space, period, depth_used, h0, g)
         # dof classes and sides of the coast
         dl = space.doflocs
         inside = ((dl[0] > gam[0]) & (dl[0] < gam[2]) & (dl[1] > gam[1]) & (dl[1] < gam[3]))
-        coast = self._coast(water, slits, segs, krs, gam, outer, L0, o, kr_of)
+        coast = self._coast(water, slits, segs, krs, gam, outer, L0, o, kr_of, fac_of)
         side = np.ones(space.N)
         if coast is not None:
             mt = space.skmesh
@@ -533,7 +671,7 @@ class HarbourModel:
             out.append(c[ang > np.radians(15.0)])
         return np.concatenate(out) if out else np.zeros((0, 2))
 
-    def _coast(self, water, slits, segs, krs, gam, outer, L0, o, kr_of):
+    def _coast(self, water, slits, segs, krs, gam, outer, L0, o, kr_of, fac_of):
         """The straight coast where land or walls leave the total-field box, if any."""
         # the coast where it leaves the total-field box: within the exterior ring, not
         # the absorbing layer beyond it (where the far side of a land strip may lie)
@@ -582,8 +720,10 @@ class HarbourModel:
         land_backed = land_plus != land_minus
         if land_plus and not land_minus:
             n = -n
-        kr = float(kr_of((mid - 1e-3 * L0 * n)[:, None], -n[:, None])[0])
-        return _Coast(point=mid, normal=n, kr=kr, land_backed=land_backed)
+        at = (mid - 1e-3 * L0 * n)[:, None]
+        kr = float(kr_of(at, -n[:, None])[0])
+        fac = float(fac_of(at, -n[:, None])[0])
+        return _Coast(point=mid, normal=n, kr=kr, land_backed=land_backed, factor=fac)
 
     def _background(self, setup, alphas):
         """Background wave at the dofs for directions of travel ``alphas`` (rad)."""
@@ -612,13 +752,125 @@ class HarbourModel:
                     continue
                 nrm, sgn = -nrm, -1.0
             cos_t = -(d @ nrm)
-            R = robin_reflection(c.kr, np.arccos(np.clip(cos_t, 0.0, 1.0)))
+            R = robin_reflection(c.kr, np.arccos(np.clip(cos_t, 0.0, 1.0)),
+                                 attack=np.arccos(np.clip(c.factor, 0.0, 1.0)))
             dr = d - 2.0 * (d @ nrm) * nrm
             phr = k0 * ((d - dr) @ c.point)
             refl = R * np.exp(1j * (k0 * (dr[0] * dl[0] + dr[1] * dl[1]) + phr + ph0))
             sea = (setup.side * sgn) > 0
             B[:, j] = np.where(sea, inc + refl, 0.0)
         return B, reach
+
+    # -- cost ----------------------------------------------------------------------
+    def _unknowns_estimate(self, period, samples=250):
+        """Unknowns of the mesh of one period, from the domain and the local wavelength."""
+        dom = self._domain(period)
+        x0, y0, x1, y1 = dom.layer.outer
+        nx = ny = int(samples)
+        dx, dy = (x1 - x0) / nx, (y1 - y0) / ny
+        xs = x0 + dx * (np.arange(nx) + 0.5)
+        ys = y0 + dy * (np.arange(ny) + 0.5)
+        X, Y = np.meshgrid(xs, ys)
+        h = dom.depth_used(X, Y)
+        wet = np.ones(X.shape, bool)
+        o = self.origin
+        land = self.layout.land_union()
+        if not land.is_empty:
+            wet &= ~shapely.contains_xy(land, X + o[0], Y + o[1])
+        if not dom.const:
+            wet &= self._depth_raw(X, Y) >= self.min_depth
+        L = 2 * np.pi / np.asarray(wavenumber(period, np.maximum(h, 1e-3), self.g))
+        s = L / self.ppw
+        n = _EST_UNKNOWNS_PER_S2 * float(np.sum(wet / s ** 2)) * dx * dy
+        corners = self._corners(None, dom.L0)
+        if len(corners):
+            # the extra unknowns of a graded disk do not depend on its size; a corner's graded disk is only partly water (a head: all; a land corner:
+            # about three quarters); take it whole, the calibration absorbs the rest
+            n += _EST_UNKNOWNS_PER_S2 * _EST_CORNER * corners.shape[0]
+        return n
+
+    def _capped_period(self, max_unknowns, longest):
+        """The shortest period (s) whose mesh stays within ``max_unknowns`` (bisection)."""
+        lo, hi = 0.05 * longest, longest  # lo too short (too many unknowns), hi fits
+        if self._unknowns_estimate(hi) > max_unknowns:
+            return hi
+        for _ in range(30):
+            mid = np.sqrt(lo * hi)
+            if self._unknowns_estimate(mid) > max_unknowns:
+                lo = mid
+            else:
+                hi = mid
+            if hi / lo < 1.002:
+                break
+        return hi
+
+    def estimate(self, periods, n_directions=1, max_unknowns=None):
+        r"""Unknowns, memory and seconds of solving some wave periods, without solving.
+
+        Parameters
+        ----------
+        periods : float or array_like
+            Wave periods T (s), e.g. the frequency bands of a random sea
+            (``1 / numpy.unique(components.frequency)``).
+        n_directions : int or array_like, optional
+            Directions (back-substitutions) per period.
+        max_unknowns : int, optional
+            Cap of :meth:`random`: a period whose mesh would need more unknowns is
+            solved at the shortest period that fits (reported in ``solve_periods``).
+
+        Returns
+        -------
+        FieldEstimate
+            Per period and in total (each distinct solve period factorised once).
+
+        Notes
+        -----
+        The mesh follows the local wavelength, element edge :math:`s = L(h)/n_{ppw}`,
+        so the unknowns are :math:`n \approx c_u \int_{water} s^{-2}\,dA` plus a
+        fixed number per graded corner, integrated on a 250 x 250 raster of the
+        model's domain (the same domain, margins and layer as the solve). Nested
+        dissection in two dimensions gives a factor of :math:`c_f\, n \log_2 n`
+        non-zeros and :math:`O(n^{3/2})` work (George 1973); meshing and assembly are
+        linear in n. The constants are fitted to measured solves on this machine
+        (docs/full-field.md, ``benchmarks/fullfield_estimate.py``: unknowns within
+        about 10 %, seconds within a factor of about 1.5 when the machine is not
+        shared).
+
+        References
+        ----------
+        George, A. (1973). Nested dissection of a regular finite element mesh. SIAM
+        Journal on Numerical Analysis 10(2), 345-363.
+        """
+        T = np.atleast_1d(np.asarray(periods, float)).ravel()
+        if T.size == 0 or not np.all(np.isfinite(T) & (T > 0)):
+            raise InputError("periods must be positive (s)", key="period")
+        ndir = np.broadcast_to(np.asarray(n_directions, float), T.shape)
+        n = np.array([self._unknowns_estimate(t) for t in T])
+        solve_T = T.copy()
+        capped = np.zeros(T.size, bool)
+        if max_unknowns is not None and np.any(n > max_unknowns):
+            Tc = self._capped_period(float(max_unknowns), float(T.max()))
+            capped = n > max_unknowns
+            solve_T[capped] = np.maximum(Tc, T[capped])
+            n[capped] = self._unknowns_estimate(Tc)
+        fill = _EST_FILL * n * np.log2(np.maximum(n, 2.0))
+        fbytes = _EST_BYTES_PER_NNZ * fill
+        peak = (_EST_BASE_BYTES + _EST_PEAK_PER_FACTOR * fbytes
+                + _EST_BYTES_PER_UNKNOWN * n)
+        sec_setup = _EST_SECONDS_PER_UNKNOWN * n + _EST_FACTOR_SECONDS * n ** 1.5
+        sec_solve = _EST_SOLVE_SECONDS_PER_NNZ * fill * ndir
+        # one factorisation per distinct solve period
+        _, first = np.unique(np.round(solve_T, 9), return_index=True)
+        once = np.zeros(T.size, bool)
+        once[first] = True
+        seconds = np.where(once, sec_setup, 0.0) + sec_solve
+        return FieldEstimate(periods=T, solve_periods=solve_T,
+                             unknowns=np.round(n).astype(np.int64),
+                             factor_bytes=fbytes, peak_bytes=peak, seconds=seconds,
+                             capped=capped, total_unknowns=int(np.round(n[once].sum())),
+                             total_seconds=float(seconds.sum()),
+                             max_factor_bytes=float(fbytes.max()),
+                             max_peak_bytes=float(peak.max()))
 
     # -- public --------------------------------------------------------------------
     def frequency(self, period):
@@ -651,13 +903,17 @@ class HarbourModel:
     def _directions(self, period, directions):
         s = self._setup(float(period))
         al = np.radians(np.atleast_1d(np.asarray(directions, float)))
-        B, reach = self._background(s, al)
+        out = np.empty((s.P.shape[0], al.size), complex)
+        reach = np.ones(al.size, bool)
+        # a few right-hand sides at a time: each is a few vectors over every dof
+        for j in range(0, al.size, _RHS_CHUNK):
+            B, reach[j:j + _RHS_CHUNK] = self._background(s, al[j:j + _RHS_CHUNK])
+            rhs = s.solver.total_field_sources(B, s.inside)
+            del B
+            out[:, j:j + _RHS_CHUNK] = np.asarray(s.P @ s.solver.solve(rhs))
         if not np.all(reach):
             self._note("field-from-land", "a wave direction travels from the land across "
                        "the coast; it brings no waves into the model", level="note")
-        rhs = s.solver.total_field_sources(B, s.inside)
-        w = s.solver.solve(rhs)
-        out = np.asarray(s.P @ w)
         out[~s.found] = np.nan
         return out, reach
 
@@ -677,21 +933,35 @@ class HarbourModel:
                            direction=float(direction),
                            info=dict(self._setup(float(period)).info))
 
-    def random(self, components, principal_direction, progress=None):
+    def random(self, components, principal_direction, progress=None,
+               max_unknowns=DEFAULT_MAX_UNKNOWNS, merge_capped=True):
         r"""Directional random sea by Goda's method over full-field solutions.
 
         Parameters
         ----------
         components : harbor.waves.spectra.Components
             The discretised directional spectrum (frequency-major).
-        principal_direction : float
-            Principal direction of travel (degrees counter-clockwise from +x).
+        principal_direction : float or sequence of float
+            Principal direction of travel (degrees counter-clockwise from +x); a
+            sequence gives one result per direction from the same factorisations.
         progress : callable, optional
-            ``progress(done, total)`` after each frequency band.
+            ``progress(done, total)`` after each factorisation.
+        max_unknowns : int or None, optional
+            Largest mesh (unknowns) of one frequency band; default
+            :data:`DEFAULT_MAX_UNKNOWNS`. Bands whose mesh would be larger (the short
+            waves of the spectrum's tail, whose wavelength the mesh must follow) are
+            solved at the shortest period whose mesh fits, with a ``field-bands-capped``
+            notice. ``None``: every band at its own period.
+        merge_capped : bool, optional
+            The capped bands share one period; solve only the directions of the capped
+            band nearest to it and give every capped component the nearest of those
+            (default), instead of one back-substitution per capped component.
 
         Returns
         -------
-        RandomFieldResult
+        RandomFieldResult or list of RandomFieldResult
+            A list (one per principal direction) when ``principal_direction`` is a
+            sequence.
 
         Notes
         -----
@@ -703,7 +973,14 @@ class HarbourModel:
 
         as the screening methods (:func:`harbor.solver.random.random_sea_field`), with
         w the components' energy fractions. One factorisation per frequency band, one
-        back-substitution per direction.
+        back-substitution per direction of every principal direction; each band's
+        factorisation is freed when the band is done.
+
+        A capped band keeps its own frequency f in the sums and its own directions; only
+        its K' is that of the capped period T_c (the shortest that fits). Behind a
+        structure shorter waves diffract less, so this over-states their K' there;
+        measured on an exact gap solution (docs/full-field.md, "Random seas") the error
+        in K_eff is below 0.01 for the caps used.
 
         References
         ----------
@@ -711,44 +988,104 @@ class HarbourModel:
         directional random waves. Proc. 16th International Conference on Coastal
         Engineering, ASCE, 628-650.
         """
-        freq = np.asarray(components.frequency)
-        weight = np.asarray(components.weight)
-        angle = np.asarray(components.angle)
+        many = np.ndim(principal_direction) > 0
+        principals = np.atleast_1d(np.asarray(principal_direction, float)).ravel()
+        if principals.size == 0 or not np.all(np.isfinite(principals)):
+            raise InputError("principal directions must be finite numbers (degrees)",
+                             key="from")
+        freq = np.asarray(components.frequency, float)
+        weight = np.asarray(components.weight, float)
+        angle = np.asarray(components.angle, float)
         bands = np.unique(freq)
+        periods = 1.0 / bands
+        solve_T = periods.copy()
+        capped = np.zeros(bands.size, bool)
+        if max_unknowns is not None:
+            est = self.estimate(periods, max_unknowns=max_unknowns)
+            solve_T, capped = est.solve_periods, est.capped
         n_eval = len(self.points) + (self.grid[0].size * self.grid[1].size
                                      if self.grid is not None else 0)
-        e0 = np.zeros(n_eval)
-        e2 = np.zeros(n_eval)
-        reaching = 0.0
+        npr = principals.size
+        e0 = np.zeros((npr, n_eval))
+        e2 = np.zeros((npr, n_eval))
+        reaching = np.zeros(npr)
         infos = []
-        for bi, f in enumerate(bands):
-            sel = freq == f
-            dirs = principal_direction + np.degrees(angle[sel])
-            u, reach = self._directions(1.0 / f, dirs)
-            s = self._setup(1.0 / f)
-            p = np.abs(u) ** 2
-            e0 += p @ weight[sel]
-            e2 += f * f * (p @ weight[sel])
-            reaching += float(weight[sel][reach].sum())
-            infos.append(s.info)
+        keys = np.round(solve_T, 9)
+        groups = [np.flatnonzero(keys == k) for k in np.unique(keys)[::-1]]
+        for gi, members in enumerate(groups):
+            Ts = float(solve_T[members[0]])
+            # every component of every member band, for every principal direction
+            sels = [np.flatnonzero(freq == bands[b]) for b in members]
+            comp = np.concatenate(sels)
+            if merge_capped and len(members) > 1:
+                # the capped bands share one period: solve only the directions of the
+                # band nearest to it and interpolate |eta|^2 linearly in direction
+                # between them for every other capped component (measured:
+                # docs/full-field.md)
+                ref = np.sort(angle[sels[int(np.argmin(periods[members]))]])
+                a = np.clip(angle[comp], ref[0], ref[-1])
+                i = np.clip(np.searchsorted(ref, a) - 1, 0, ref.size - 2)
+                t = (a - ref[i]) / (ref[i + 1] - ref[i])
+                col = np.concatenate([i, i + 1])
+                lin = np.concatenate([1.0 - t, t])
+                solved = ref
+            else:
+                col = np.arange(comp.size)
+                lin = np.ones(comp.size)
+                solved = angle[comp]
+            dirs = (principals[:, None] + np.degrees(solved)[None, :]).ravel()
+            u, reach = self._directions(Ts, dirs)
+            p = (np.abs(u) ** 2).reshape(n_eval, npr, solved.size)
+            w = weight[comp]
+            f2 = freq[comp] ** 2
+            # weights gathered onto the solved directions
+            rep_ = col.size // comp.size
+            ws = np.bincount(col, lin * np.tile(w, rep_), minlength=solved.size)
+            ws2 = np.bincount(col, lin * np.tile(w * f2, rep_), minlength=solved.size)
+            e0 += np.einsum("epc,c->pe", p, ws)
+            e2 += np.einsum("epc,c->pe", p, ws2)
+            reaching += (reach.reshape(npr, solved.size) * ws).sum(axis=1)
+            info = dict(self._setup(Ts).info)
+            info["bands"] = [float(periods[b]) for b in members]
+            infos.append(info)
             # free the factorisation once the band is done: memory stays that of one band
-            self._periods.pop(round(float(1.0 / f), 9), None)
+            self._periods.pop(round(Ts, 9), None)
             if progress:
-                progress(bi + 1, bands.size)
+                progress(gi + 1, len(groups))
+        if np.any(capped):
+            wc = float(sum(weight[freq == bands[b]].sum() for b in np.flatnonzero(capped)))
+            w2 = float(sum((weight * freq ** 2)[freq == bands[b]].sum()
+                           for b in np.flatnonzero(capped)))
+            tc = float(solve_T[capped].max())
+            self._note("field-bands-capped",
+                       f"{int(capped.sum())} of {bands.size} frequency bands (periods "
+                       f"{periods[capped].min():.2f}-{periods[capped].max():.2f} s, "
+                       f"{100 * wc / weight.sum():.1f} % of the energy, "
+                       f"{100 * w2 / np.sum(weight * freq ** 2):.1f} % of the f^2-weighted "
+                       f"energy) would need meshes over {int(max_unknowns)} unknowns; they "
+                       f"take the response at {tc:.2f} s, the shortest period that fits, "
+                       f"which over-states their K' behind structures",
+                       level="note")
         inc0 = float(weight.sum())
         inc2 = float(np.sum(weight * freq ** 2))
-        kd = np.sqrt(e0 / inc0)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            ratio = np.sqrt((e0 / e2) / (inc0 / inc2))
-        ratio = np.where(e0 > 1e-12 * inc0, ratio, np.nan)
         n = len(self.points)
-        kg = rg = None
-        if self.grid is not None:
-            shp = (self.grid[1].size, self.grid[0].size)
-            kg, rg = kd[n:].reshape(shp), ratio[n:].reshape(shp)
-        return RandomFieldResult(kd_points=kd[:n], ratio_points=ratio[:n], kd_grid=kg,
-                                 ratio_grid=rg, reaching=reaching,
-                                 info={"bands": infos})
+        out = []
+        for j in range(npr):
+            kd = np.sqrt(e0[j] / inc0)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                ratio = np.sqrt((e0[j] / e2[j]) / (inc0 / inc2))
+            ratio = np.where(e0[j] > 1e-12 * inc0, ratio, np.nan)
+            kg = rg = None
+            if self.grid is not None:
+                shp = (self.grid[1].size, self.grid[0].size)
+                kg, rg = kd[n:].reshape(shp), ratio[n:].reshape(shp)
+            out.append(RandomFieldResult(
+                kd_points=kd[:n], ratio_points=ratio[:n], kd_grid=kg, ratio_grid=rg,
+                reaching=float(reaching[j]),
+                info={"bands": infos, "principal_direction": float(principals[j]),
+                      "capped_periods": [float(t) for t in periods[capped]],
+                      "solve_periods": [float(t) for t in solve_T]}))
+        return out if many else out[0]
 
 
 def _nearest_kr(segs, krs, default):

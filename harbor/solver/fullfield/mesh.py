@@ -154,12 +154,16 @@ def build(water, slits, size, max_rounds=6):
     base = 0
     rings = [shapely.LineString(r) for r in _rings(water)]
     slit_lines = [shapely.LineString(np.asarray(q, float)) for q in slits]
-    if slit_lines:
-        # a slit that ends on a shore ends there only to rounding: put its end on the
-        # shore's ring as a vertex, or the mesher sees a T-junction it cannot split
-        ends = shapely.multipoints(np.concatenate([np.asarray(q, float)[[0, -1]]
-                                                   for q in slits]))
-        rings = [shapely.snap(r, ends, 1e-7 * scale) for r in rings]
+    if slit_lines and rings:
+        # a slit clipped at a shore ends on the shore only to rounding: put that end on
+        # the ring as a vertex of both, or the mesher meets a gap of 1e-12 m and runs
+        # out of precision
+        ends = shapely.MultiPoint(np.concatenate([np.asarray(g.coords)[[0, -1]]
+                                                  for g in slit_lines]))
+        snap_tol = 1e-6 * scale
+        rings = [shapely.snap(g, ends, snap_tol) for g in rings]
+        allring = shapely.MultiLineString([np.asarray(g.coords) for g in rings])
+        slit_lines = [shapely.snap(g, allring, snap_tol) for g in slit_lines]
     # node everything where it crosses or touches (an arm rooted on a shore ends on the
     # shore's edge), so that the mesher sees no T-junctions
     noded = shapely.get_parts(shapely.node(shapely.MultiLineString(
