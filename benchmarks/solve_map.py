@@ -21,10 +21,25 @@ count (``SOLVER_BLAS_THREADS = None``) and the arm mask recomputed at each call.
 are skipped above ``--old-up-to`` m (at 1.25 m the old random seas take minutes each).
 ``--blas`` also times the new random seas with BLAS left at its default threads.
 
-Measured (2-core machine shared with other jobs, load average 4-6 during the run, so
-absolute times are noisy; old and new ran interleaved in the same process):
+Measured (``--climate``; 2-core machine shared with other jobs, load average 6-9 during
+the run, so absolute times are inflated and noisy; old and new in the same process):
 
-    see the README's performance section for the table of the latest run.
+    spacing  sea          old s   new s  speed-up  (new: general / gap / geometry / rest)
+    5 m      storm N       64.6    9.2    7.0x     7.1 / 0.5 / 0.2 / 1.4
+    5 m      ocean swell   76.7    8.7    8.9x     6.8 / 0.6 / 0.2 / 1.0
+    2.5 m    storm N      103.1   21.9    4.7x    18.9 / 0.9 / 0.6 / 1.6
+    2.5 m    ocean swell  114.7   20.6    5.6x    17.1 / 1.0 / 0.6 / 1.9
+    1.25 m   storm N          -   94.0            82.0 / 3.6 / 2.9 / 5.4
+    1.25 m   ocean swell      -   79.9            70.0 / 3.9 / 2.3 / 3.7
+    harbor map 5 m: old 101.7 s (solve 91.5), new 76.4 s (solve 48.6; the new run came
+    first and paid the writers' first use, since warmed); 2.5 m: old 248.4 s (solve
+    225.1, arm mask 7.8 s), new 75.9 s (solve 61.1, arm mask 0.15 s); 1.25 m: new 213.6 s
+    (solve 185.6). The regular sea is solved full-field (13-25 s, unchanged).
+    harbor climate, demo table: old 26.9 / 22.2 s, new 4.8 / 5.1 s.
+
+The old path scales better with the grid than with the number of calls, so the speed-up
+falls with finer grids: what is left is the fused kernel itself, about 200 ns per point
+and component on the demo (two bends, two heads, four faces, eight obstacle segments).
 """
 
 import argparse
