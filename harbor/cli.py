@@ -182,6 +182,10 @@ def cmd_check(args):
             print(f"      estimated {e.get('unknowns', 0):,} unknowns, "
                   f"{e.get('memory', 0) / 2**30:.1f} GB, about {_secs(e.get('seconds', 0))} "
                   f"for {len(e.get('periods', ()))} period(s) (nothing solved yet)")
+            if e.get("capped"):
+                print(f"      {e['capped']} of its frequency bands are too short for the mesh "
+                      f"cap and are solved at a longer period (flagged when they carry "
+                      f"more than 5 % of the energy)")
         else:
             print(f"  - {s.name}: {c.method if c.method != 'auto' else 'screening'} "
                   f"(L = {L:.1f} m) -- {c.reason}")

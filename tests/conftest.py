@@ -48,7 +48,21 @@ def spread_points(L, n_r=(0.05, 0.6, 3.0, 17.0), n_theta=16):
 
 @pytest.fixture(scope="session")
 def demo_scenario():
-    """The bundled demo scenario (an invented harbour), loaded once."""
+    """The bundled demo scenario (an invented harbour), loaded once, WITHOUT its survey
+    and reflection coefficients: the screening methods' demo (with them, every sea state
+    goes to the full-field method, which tests/test_agitation.py covers)."""
+    import dataclasses
+    from pathlib import Path
+
+    import harbor
+
+    sc = harbor.load_scenario(Path(__file__).resolve().parents[1] / "scenarios" / "demo.toml")
+    return dataclasses.replace(sc, bathymetry=None, reflection={}, footprints={})
+
+
+@pytest.fixture(scope="session")
+def full_demo_scenario():
+    """The bundled demo scenario as shipped (survey, reflection coefficients)."""
     from pathlib import Path
 
     import harbor

@@ -407,3 +407,33 @@ def test_climate_with_reflecting_walls_goes_full_field_once_per_period(tmp_path,
     np.testing.assert_allclose(res.kd.values[1], one.point_kd.values[0], atol=1e-6)
     np.testing.assert_allclose(res.point_height.values[:, 0],
                                res.kd.values[:, 0] * np.array([1.0, 2.0, 1.5]), rtol=1e-12)
+
+
+def test_bundled_demo_is_a_full_field_harbour(full_demo_scenario):
+    # the demo ships with a survey (sloping shore, dredged basin and channel) and
+    # reflection coefficients (rubble mounds, a quay wall, a beach): every sea state is
+    # planned for the full-field method, within this machine's memory
+    sc = full_demo_scenario
+    assert sc.bathymetry is not None and sc.bathymetry.kind == "soundings"
+    x, y = sc.points[0].at
+    assert 4.5 < sc.bathymetry.depth(x, y) < 8.0          # the dredged basin + 1 m level
+    assert sc.reflection["west arm"] == 0.4 and len(sc.reflection["shore"]) == 6
+    planned = harbor.solver.assemble.plan(sc)
+    assert [c.full_field for _, c in planned] == [True, True, True]
+    assert all(c.estimate["memory"] < 8 * 2**30 for _, c in planned)
+
+
+def test_sweep_runs_the_full_field_method_and_says_so(tmp_path):
+    # a narrowing entrance with reflecting walls: each head position is one full-field
+    # solve; a narrower gap lets less energy in (energy flux through the aperture)
+    pts = [(f"b{i}", X0 + x, Y0 + y) for i, (x, y) in
+           enumerate([(-60, 40), (-20, 70), (20, 30), (60, 90), (0, 100)])]
+    sc = load_scenario(_write(tmp_path, _cove(extra_land="reflection = 0.1", points=pts,
+                                              head_gap=80.0)))
+    from harbor.study.sweep import sweep
+
+    res = sweep(sc, "east", [0.0, 30.0])
+    assert all(str(m) == METHOD_FULL_FIELD for m in res.method.values.ravel())
+    assert float(res.entrance_width.values[1]) == pytest.approx(50.0, abs=0.5)
+    e = (res.kd.values[:, 0, :] ** 2).mean(axis=1)
+    assert e[1] < e[0]

@@ -222,6 +222,11 @@ class _lazy_model:
         return getattr(self.get(), name)
 
 
+#: Share of a random sea's energy in capped frequency bands above which its full-field
+#: values are flagged (outside the method's validity).
+CAPPED_SHARE_VALID = 0.05
+
+
 def solve_sea_full_field(ground, sea, model, progress=None):
     """K', period ratio, method and notices of one sea state by the full-field method.
 
@@ -278,7 +283,26 @@ def solve_sea_full_field(ground, sea, model, progress=None):
         kd, ratio = res.kd_points[:n], res.ratio_points[:n]
         w = float(np.sum(comps.weight))
         reaching = float(res.reaching / w) if w > 0 else 0.0
-    fresh = [as_notice(n).for_sea(sea.name) for n in model.notices[before:]]
+        capped = set(round(float(t), 9) for t in res.info.get("capped_periods", ()))
+        if capped and w > 0:
+            f = np.asarray(comps.frequency, float)
+            share = float(np.sum(np.asarray(comps.weight)[
+                np.isin(np.round(1.0 / f, 9), list(capped))]) / w)
+            if share > CAPPED_SHARE_VALID:
+                extra_capped = Notice(
+                    "full-field-capped", f"sea '{sea.name}': {100 * share:.0f} % of the "
+                    f"energy is in frequency bands too short for the model's mesh (solved "
+                    f"at a longer period): its K' is over-stated behind structures and is "
+                    f"flagged as outside the method's validity", sea=sea.name)
+                model.notices.append(extra_capped)
+    # one sentence per kind: the bands of a random sea repeat them with other numbers
+    fresh, seen = [], set()
+    for n in model.notices[before:]:
+        n = as_notice(n)
+        if n.code in seen and n.code not in ("field-bands-capped",):
+            continue
+        seen.add(n.code)
+        fresh.append(n.for_sea(sea.name))
     return kd, ratio, METHOD_FULL_FIELD, reaching, fresh
 
 
@@ -559,9 +583,9 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
                 valid[i][wet] = ~bad[:nw]
                 pvalid[i] = ~bad[nw:]
             more += off
-        if choice.needed:
-            # the full-field method was needed here and not run: no value of this sea
-            # state is inside a measured validity
+        if choice.needed or any(n.code == "full-field-capped" for n in fnotes):
+            # the full-field method was needed here and not run (or its shortest bands
+            # were not resolved): no value of this sea state is inside a measured validity
             valid[i][:] = False
             pvalid[i][:] = False
         for w in more:
