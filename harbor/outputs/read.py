@@ -7,6 +7,7 @@ library is imported here, so the file exporters stay light.
 
 from __future__ import annotations
 
+import hashlib
 import math
 
 import numpy as np
@@ -155,16 +156,35 @@ def arm_mask(result) -> np.ndarray:
     that an arm crosses has a corner within h / sqrt(2) of the arm (h the spacing), so
     masking those nodes masks exactly the cells that straddle it; isolines then stop
     about one cell short of the arm instead of running along it.
+
+    Every output of a run asks for it (maps, sheets, isolines, GIS layers): it is
+    computed once per grid and layout and the same read-only array is returned after.
     """
     x = np.asarray(result["x"].values, float)
     y = np.asarray(result["y"].values, float)
+    wkt = tuple(str(v) for v in result["arm_wkt"].values) if "arm_wkt" in result else ()
+    key = (hashlib.sha1(x.tobytes() + b"|" + y.tobytes()).hexdigest(), wkt)
+    hit = _ARM_MASKS.get(key)
+    if hit is not None:
+        return hit
     arms = [xy for _, xy in layout_shapes(result)["arms"]]
-    X, Y = np.meshgrid(x, y)
     if not arms:
-        return np.zeros(X.shape, bool)
-    geom = shapely.MultiLineString(arms)
-    shapely.prepare(geom)
-    return shapely.dwithin(geom, shapely.points(X, Y), cell_size(x, y) / math.sqrt(2.0) * 1.001)
+        mask = np.zeros((y.size, x.size), bool)
+    else:
+        X, Y = np.meshgrid(x, y)
+        geom = shapely.MultiLineString(arms)
+        shapely.prepare(geom)
+        mask = shapely.dwithin(geom, shapely.points(X, Y),
+                               cell_size(x, y) / math.sqrt(2.0) * 1.001)
+    mask.setflags(write=False)
+    if len(_ARM_MASKS) >= 4:
+        _ARM_MASKS.pop(next(iter(_ARM_MASKS)))
+    _ARM_MASKS[key] = mask
+    return mask
+
+
+#: arm_mask's results by (grid, arms): a run's outputs share one
+_ARM_MASKS: dict = {}
 
 
 def is_lonlat(result) -> bool:

@@ -671,6 +671,241 @@ def general_field(layout, px, py, wavelength, alpha, segments=None, visible=None
     return u.reshape(shape), n_lit
 
 
+#: Threads for :func:`general_components` (its compiled loop releases the GIL and splits
+#: the points between them); None: one per core, at most 2 (the work per call is a few
+#: seconds at most: more threads only add start-up cost). 1 runs in the caller's thread.
+KERNEL_THREADS = None
+
+
+def _kernel_threads(work):
+    import os
+
+    if work < 200_000:
+        return 1
+    if KERNEL_THREADS is not None:
+        return max(1, int(KERNEL_THREADS))
+    return max(1, min(2, os.cpu_count() or 1))
+
+
+def general_components(layout, px, py, wavelengths, alphas, weights=None, fweights=None,
+                       segments=None, visible=None, field=False):
+    r"""Many components of the general method at once (first order), fused and compiled.
+
+    Parameters
+    ----------
+    layout : harbor.geometry.layout.Layout
+    px, py : numpy.ndarray
+        Points (m, work frame), 1-D.
+    wavelengths, alphas : numpy.ndarray
+        L (m) and direction of travel (rad, math angle, work frame) of each component.
+    weights, fweights : numpy.ndarray, optional
+        Energy weights w and w f^2 of each component (energy mode).
+    segments : tuple, optional
+        Output of :func:`harbor.geometry.visibility.layout_segments` (to reuse).
+    visible : list of numpy.ndarray, optional
+        Output of :func:`head_visibility` for the same points (to reuse).
+    field : bool
+        Return the fields instead of the energy.
+
+    Returns
+    -------
+    e0, e2 : numpy.ndarray
+        :math:`\sum_c w_c |u_c|^2` and :math:`\sum_c (w f^2)_c |u_c|^2` per point
+        (energy mode), or the fields, shape (components, points), when ``field``.
+    lit_heads : numpy.ndarray of int
+        Heads the incident wave reaches, per component.
+    reaches : numpy.ndarray of bool
+        Per component, whether its field is non-zero anywhere (energy mode).
+
+    Notes
+    -----
+    The same field as :func:`general_field` with ``higher_order=False`` (to rounding;
+    the compiled loops of :mod:`harbor.solver.kernels.general`): geometric optics of the
+    whole layout, first-order reflection from the struck faces, and each lit edge's
+    diffracted wave where it is visible. What depends only on the direction (struck
+    faces, reflected directions, lit edges, the local frames and sectors of the edges)
+    is prepared once per component, what depends only on the point once per point.
+
+    References
+    ----------
+    .. [1] Penney, W. G., & Price, A. T. (1952). The diffraction theory of sea waves and
+       the shelter afforded by breakwaters. *Phil. Trans. R. Soc. Lond. A*, 244(882),
+       236-253.
+    .. [2] Kouyoumjian, R. G., & Pathak, P. H. (1974). A uniform geometrical theory of
+       diffraction for an edge in a perfectly conducting surface. *Proceedings of the
+       IEEE*, 62(11), 1448-1461.
+    """
+    from harbor.solver.kernels import general as _gk
+
+    wet, _ = active_layout(layout)
+    if wet is not layout:
+        layout, segments, visible = wet, None, None
+    px = np.ascontiguousarray(px, float).ravel()
+    py = np.ascontiguousarray(py, float).ravel()
+    Ls = np.atleast_1d(np.asarray(wavelengths, float))
+    als = np.atleast_1d(np.asarray(alphas, float))
+    nc, n = als.size, px.size
+    w = np.zeros(nc) if weights is None else np.asarray(weights, float)
+    wf2 = np.zeros(nc) if fweights is None else np.asarray(fweights, float)
+    e0 = np.zeros(n)
+    e2 = np.zeros(n)
+    out_field = np.zeros((nc, n) if field else (1, 1), complex)
+    anyp = np.zeros(nc, bool)
+    lit_heads = np.zeros(nc, int)
+    groups: dict = {}
+    for c in range(nc):
+        d0 = np.array([np.cos(als[c]), np.sin(als[c])])
+        groups.setdefault(frozenset(edge_on_arms(layout, d0, Ls[c])), []).append(c)
+    for key, members in groups.items():
+        cs = np.array(members)
+        if key:
+            lay = Layout(arms=tuple(a for i, a in enumerate(layout.arms) if i not in key),
+                         lands=layout.lands)
+            segs = layout_segments(lay)
+            vis = head_visibility(lay, px, py, segs)
+        else:
+            lay = layout
+            segs = segments if segments is not None else layout_segments(layout)
+            vis = visible if visible is not None else head_visibility(layout, px, py, segs)
+        seg, owner, open_ends = segs
+        m = len(seg)
+        seg4 = np.ascontiguousarray(np.asarray(seg, float).reshape(m, 4))
+        open0 = np.ascontiguousarray(open_ends[:, 0]) if m else np.zeros(0, bool)
+        open1 = np.ascontiguousarray(open_ends[:, 1]) if m else np.zeros(0, bool)
+        ray_scale = float(np.max(np.abs(seg))) if m else 1.0
+        ray_scale = ray_scale or 1.0
+        k = 2 * np.pi / Ls[cs]
+        dxy = np.stack([np.cos(als[cs]), np.sin(als[cs])], axis=1)
+        ncs = cs.size
+        # faces: the seaward side of each arm segment for each direction
+        face_seg = np.array([i for i, o in enumerate(owner) if o.startswith("arm:")], np.int64)
+        nf = face_seg.size
+        face_on = np.zeros((ncs, nf), bool)
+        fn = np.zeros((ncs, nf, 2))
+        fr = np.zeros((ncs, nf, 2))
+        frn = np.ones((ncs, nf))
+        fph = np.zeros((ncs, nf))
+        for f, si in enumerate(face_seg):
+            a, b = seg[si]
+            t = b - a
+            nrm = np.array([-t[1], t[0]]) / np.hypot(*t)
+            nn = np.where((dxy @ nrm)[:, None] > 0, -nrm, nrm)
+            dn = np.sum(dxy * nn, axis=1)
+            face_on[:, f] = ~(dn > -1e-12)
+            dr = dxy - 2 * dn[:, None] * nn
+            fn[:, f] = nn
+            fr[:, f] = dr
+            frn[:, f] = np.sum(dr * nn, axis=1)
+            fph[:, f] = dxy @ a
+        # edges: lit or not, their local frames (heads) and struck sectors (bends)
+        edges = diffracting_edges(lay)
+        ne = len(edges)
+        tips = np.array([e[0] for e in edges], float).reshape(ne, 2)
+        kind = np.array([len(e[1]) for e in edges], np.int64)
+        inw = np.array([e[1][0] for e in edges], float).reshape(ne, 2)
+        tx = np.repeat(tips[None, :, 0], ncs, 0).ravel()
+        ty = np.repeat(tips[None, :, 1], ncs, 0).ravel()
+        ux = np.repeat(-dxy[:, 0:1], ne, 1).ravel()
+        uy = np.repeat(-dxy[:, 1:2], ne, 1).ravel()
+        elit = (~_gk.rays_blocked(tx, ty, ux, uy, seg4, open0, open1, ray_scale)
+                if ne and m else np.ones(ncs * ne, bool)).reshape(ncs, ne)
+        eph = np.exp(1j * k[:, None] * (dxy @ tips.T)) if ne else np.zeros((ncs, 0), complex)
+        eysgn = np.ones((ncs, ne))
+        c0 = np.zeros((ncs, ne))
+        s0 = np.zeros((ncs, ne))
+        bface0 = np.zeros((ncs, ne))
+        bwater = np.zeros((ncs, ne))
+        bphi0 = np.zeros((ncs, ne))
+        bn = np.ones((ncs, ne))
+        # a bend's two sides: (face0, water) as harbor.solver.layout.bend_sector picks them
+        bcfg = np.zeros((ncs, ne), np.int64)
+        cfg_face0 = np.zeros((ne, 2))
+        cfg_n = np.ones((ne, 2))
+        q2c = np.ones((ncs, ne))
+        q2s = np.zeros((ncs, ne))
+        qnc = np.ones((ncs, ne))
+        qns = np.zeros((ncs, ne))
+        tiny = np.radians(GRAZING_DEG)
+        for e, (tip, dirs) in enumerate(edges):
+            if len(dirs) == 1:
+                inward = dirs[0]
+                ey = np.array([-inward[1], inward[0]])
+                flip = dxy @ ey < 0
+                eysgn[:, e] = np.where(flip, -1.0, 1.0)
+                eyc = np.where(flip[:, None], -ey, ey)
+                local = np.arctan2(np.sum(dxy * eyc, axis=1), dxy @ inward)
+                local = np.clip(local, tiny, np.pi - tiny)
+                theta0 = np.pi - local
+                c0[:, e] = np.cos(0.5 * theta0)
+                s0[:, e] = np.sin(0.5 * theta0)
+            else:
+                a0 = float(np.arctan2(dirs[0][1], dirs[0][0]))
+                a1 = float(np.arctan2(dirs[1][1], dirs[1][0]))
+                wa = np.mod(a1 - a0, 2 * np.pi)
+                cfg_face0[e] = (a0, a1)
+                cfg_n[e] = (float(wa) / np.pi, float(2 * np.pi - wa) / np.pi)
+                for j in range(ncs):
+                    dv = dxy[j]
+                    face0, water, phi0 = bend_sector(dirs, float(np.arctan2(-dv[1], -dv[0])))
+                    bface0[j, e], bwater[j, e], bphi0[j, e] = face0, water, phi0
+                    bn[j, e] = water / np.pi
+                    bcfg[j, e] = 0 if face0 == a0 else 1
+                    cfg_n[e, bcfg[j, e]] = bn[j, e]
+                q2c[:, e] = np.cos(0.5 * bphi0[:, e])
+                q2s[:, e] = np.sin(0.5 * bphi0[:, e])
+                qnc[:, e] = np.cos(0.5 * bphi0[:, e] / bn[:, e])
+                qns[:, e] = np.sin(0.5 * bphi0[:, e] / bn[:, e])
+        cfg_cpn = np.cos(0.5 * np.pi / cfg_n)
+        cfg_spn = np.sin(0.5 * np.pi / cfg_n)
+        big = np.arange(-4, 5)
+        cfg_tabc = np.ascontiguousarray(np.cos(np.pi * cfg_n[..., None] * big))
+        cfg_tabs = np.ascontiguousarray(np.sin(np.pi * cfg_n[..., None] * big))
+        lit_heads[cs] = np.sum(elit & (kind == 1)[None, :], axis=1)
+        vis_arr = (np.ascontiguousarray(np.array(vis, bool).reshape(ne, n)) if ne
+                   else np.zeros((0, n), bool))
+        args_pre = (seg4, open0, open1, face_seg, ray_scale,
+                    np.ascontiguousarray(tips[:, 0]), np.ascontiguousarray(tips[:, 1]), kind,
+                    np.ascontiguousarray(inw[:, 0]), np.ascontiguousarray(inw[:, 1]))
+        args_post = (
+            np.ascontiguousarray(k), np.ascontiguousarray(dxy[:, 0]),
+            np.ascontiguousarray(dxy[:, 1]), np.ascontiguousarray(w[cs]),
+            np.ascontiguousarray(wf2[cs]),
+            face_on, np.ascontiguousarray(fn[..., 0]), np.ascontiguousarray(fn[..., 1]),
+            np.ascontiguousarray(fr[..., 0]), np.ascontiguousarray(fr[..., 1]), frn, fph,
+            np.ascontiguousarray(elit), np.ascontiguousarray(eph.real),
+            np.ascontiguousarray(eph.imag), eysgn, c0, s0, bface0, bwater, bphi0, bn,
+            bcfg, cfg_face0, cfg_n, cfg_cpn, cfg_spn, cfg_tabc, cfg_tabs, q2c, q2s, qnc, qns,
+            1 if field else 0)
+
+        def run(lo, hi):
+            sub_any = np.zeros(ncs, bool)
+            sub_field = np.zeros((ncs, hi - lo) if field else (1, 1), complex)
+            _gk.general_components(px[lo:hi], py[lo:hi], *args_pre,
+                                   np.ascontiguousarray(vis_arr[:, lo:hi]), *args_post,
+                                   e0[lo:hi], e2[lo:hi], sub_any, sub_field)
+            return lo, hi, sub_any, sub_field
+
+        cuts = np.linspace(0, n, _kernel_threads(n * ncs) + 1).astype(int)
+        spans = [(int(a), int(b)) for a, b in zip(cuts[:-1], cuts[1:]) if b > a]
+        if len(spans) > 1:
+            # the compiled loop releases the GIL: the point ranges run side by side
+            from concurrent.futures import ThreadPoolExecutor
+
+            with ThreadPoolExecutor(len(spans)) as pool:
+                parts = list(pool.map(lambda ab: run(*ab), spans))
+        else:
+            parts = [run(*ab) for ab in spans]
+        sub_any = np.zeros(ncs, bool)
+        for lo, hi, a_, f_ in parts:
+            sub_any |= a_
+            if field:
+                out_field[cs, lo:hi] = f_
+        anyp[cs] = sub_any
+    if field:
+        return out_field, lit_heads, anyp
+    return e0, e2, lit_heads, anyp
+
+
 def layout_field(layout, px, py, wavelength, alpha, method="auto"):
     """Field of one regular sea over a layout, choosing the method.
 

@@ -22,9 +22,12 @@ from harbor.solver.layout import (
     entrance_blend,
     entrance_frames,
     gap_field,
+    general_components,
     general_field,
     head_visibility,
 )
+from harbor.solver.kernels._compiled import HAVE_NUMBA, blas_limited
+from harbor.solver.kernels.gap import gap_exact_many
 from harbor.geometry.entrance import basin_mask
 from harbor.geometry.visibility import layout_segments
 from harbor.waves.dispersion import wavelength as _wavelength
@@ -33,6 +36,11 @@ from harbor.waves.dispersion import wavelength as _wavelength
 #: classic entrance narrower than this many wavelengths (its cost, batched over the
 #: directions of a frequency band, is below that of the per-direction superposition).
 BATCH_EXACT_BELOW = 16.0
+
+#: Use the fused, compiled components of the general method
+#: (:func:`harbor.solver.layout.general_components`); False runs the former per-component
+#: numpy path (:func:`_random_sea_field_reference`), kept for the benchmarks.
+FUSED = HAVE_NUMBA
 
 #: Points per block: bounds the memory of a random-sea solve (one block holds a complex
 #: field per direction of one frequency band).
@@ -51,6 +59,14 @@ class RandomResult:
 
 def _progress_noop(done, total):
     return None
+
+
+def _random_sea_field_reference(layout, px, py, components, depth, principal_alpha, g=9.81,
+                                method="auto", progress=None):
+    """The former per-component path of :func:`random_sea_field` (numpy, one
+    :func:`harbor.solver.layout.general_field` call per component), for the benchmarks."""
+    return _random_sea_field(layout, px, py, components, depth, principal_alpha, g, method,
+                             progress, fused=False)
 
 
 def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
@@ -100,6 +116,13 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
     .. [2] Goda, Y. (2010). *Random Seas and Design of Maritime Structures* (3rd ed.).
        World Scientific, sect. 3.2.
     """
+    with blas_limited():
+        return _random_sea_field(layout, px, py, components, depth, principal_alpha, g,
+                                 method, progress, fused=FUSED)
+
+
+def _random_sea_field(layout, px, py, components, depth, principal_alpha, g, method,
+                      progress, fused):
     progress = progress or _progress_noop
     px, py = np.broadcast_arrays(np.asarray(px, float), np.asarray(py, float))
     shape = px.shape
@@ -172,6 +195,11 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
                     e0[inside] += be0
                     e2[inside] += f * f * be0
                 reaching += float(w[pick].sum())
+        if fused:
+            reaching += _general_band(layout, xf, yf, L, f, k_alpha, w, batched, inside, ent,
+                                      use_of, segments, visible_all, e0, e2, methods)
+            progress(bi + 1, bands.size)
+            continue
         # the batched components still need the general method outside the basin
         outside = ~inside if inside is not None else None
         for j in range(sel.size):
@@ -219,3 +247,86 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
     ratio = np.where(e0 > 1e-12 * inc_m0, ratio, np.nan)
     return RandomResult(kd=kd.reshape(shape), period_ratio=ratio.reshape(shape),
                         methods=methods, reaching=reaching)
+
+
+def _general_band(layout, xf, yf, L, f, k_alpha, w, batched, inside, ent, use_of, segments,
+                  visible_all, e0, e2, methods):
+    """The general method's share of one frequency band, fused: the components not
+    solved by the gap kernels over all points, and those that are outside the basin
+    (with the same hand-over to the gap solution near the entrance as a regular sea).
+    Adds to ``e0``, ``e2`` and ``methods``; returns the energy that reaches the layout."""
+    reaching = 0.0
+    ff = f * f
+    free = np.nonzero(~batched)[0]
+    if free.size:
+        a0, a2, lit, reach = general_components(
+            layout, xf, yf, np.full(free.size, L), k_alpha[free], w[free],
+            np.array([w[j] * f * f for j in free]), segments=segments, visible=visible_all)
+        e0 += a0
+        e2 += a2
+        for j, jl, jr in zip(free, lit, reach):
+            methods[METHOD_GENERAL] = methods.get(METHOD_GENERAL, 0.0) + float(w[j])
+            if jl or jr:
+                reaching += float(w[j])
+    bat = np.nonzero(batched)[0]
+    if bat.size == 0 or inside is None:
+        return reaching
+    out_idx = np.nonzero(~inside)[0]
+    if out_idx.size == 0:
+        return reaching
+    ox, oy = xf[out_idx], yf[out_idx]
+    vis_o = [v[out_idx] for v in visible_all]
+    wb = entrance_blend(layout, ent, ox, oy, L, segments)
+    zone = wb > 0
+    rest = np.nonzero(~zone)[0]
+    wfs = np.array([w[j] * f * f for j in bat])
+    if rest.size:
+        a0, a2, _, _ = general_components(
+            layout, ox[rest], oy[rest], np.full(bat.size, L), k_alpha[bat], w[bat], wfs,
+            segments=segments, visible=[v[rest] for v in vis_o])
+        e0[out_idx[rest]] += a0
+        e2[out_idx[rest]] += a2
+    zi = np.nonzero(zone)[0]
+    if zi.size:
+        zx, zy = ox[zi], oy[zi]
+        U, _, _ = general_components(layout, zx, zy, np.full(bat.size, L), k_alpha[bat],
+                                     segments=segments, visible=[v[zi] for v in vis_o],
+                                     field=True)
+        G = _gap_fields(ent, zx, zy, L, k_alpha[bat], [use_of[int(j)] for j in bat])
+        wz = wb[zi]
+        for c, j in enumerate(bat):
+            u = U[c]
+            if G[c] is not None:
+                u = wz * G[c] + (1.0 - wz) * u
+            p = u.real**2 + u.imag**2
+            e0[out_idx[zi]] += w[j] * p
+            e2[out_idx[zi]] += w[j] * f * f * p
+    return reaching
+
+
+def _gap_fields(ent, px, py, L, alphas, uses):
+    """:func:`harbor.solver.layout.gap_field` for several directions at the same points,
+    the exact ones batched (one Hankel matrix for all of them per side of the frame)."""
+    out = [None] * len(alphas)
+    side, local, usable = entrance_frames(ent, np.asarray(alphas))
+    e = ent.axis
+    k = 2 * np.pi / L
+    for sgn in (1.0, -1.0):
+        grp = [c for c in range(len(alphas))
+               if usable[c] and side[c] == sgn and uses[c] == "exact"]
+        if not grp:
+            continue
+        n = sgn * np.array([-e[1], e[0]])
+        dx = px - ent.center[0]
+        dy = py - ent.center[1]
+        x = dx * e[0] + dy * e[1]
+        y = dx * n[0] + dy * n[1]
+        U = gap_exact_many(x, y, L, local[grp], ent.width)
+        for col, c in enumerate(grp):
+            d = np.array([np.cos(alphas[c]), np.sin(alphas[c])])
+            out[c] = np.exp(1j * k * np.dot(d, ent.center)) * U[:, col]
+    for c in range(len(alphas)):
+        if out[c] is None and usable[c]:
+            got = gap_field(ent, px, py, L, float(alphas[c]), method=uses[c])
+            out[c] = None if got is None else got[0]
+    return out

@@ -278,3 +278,35 @@ def gap_energy(xp, yp, xs, k, W, cos_a, sin_a, weights, scale):
     U[sea] = (np.exp(1j * k * xp[sea, None] * cos_a) * 2 * np.cos(k * yp[sea, None] * sin_a)
               - U[sea])  # pragma: no cover
     return (np.abs(U) ** 2) @ weights  # pragma: no cover
+
+
+#: BLAS threads for the solver's small dense algebra (aperture LU, eigen-decompositions,
+#: Hankel-matrix products of a few hundred columns): on a busy machine more threads only
+#: spin (benchmarks/solve_map.py measures both). None leaves BLAS as it is.
+SOLVER_BLAS_THREADS = 1
+
+
+def blas_limited(threads=None):
+    """Context manager holding BLAS to ``threads`` (default :data:`SOLVER_BLAS_THREADS`).
+
+    Parameters
+    ----------
+    threads : int, optional
+        Number of BLAS threads; None for :data:`SOLVER_BLAS_THREADS`.
+
+    Returns
+    -------
+    contextlib.AbstractContextManager
+        ``threadpoolctl.threadpool_limits`` for the BLAS libraries, or a no-op when
+        threadpoolctl is missing or the limit is None.
+    """
+    import contextlib
+
+    n = SOLVER_BLAS_THREADS if threads is None else threads
+    if n is None:
+        return contextlib.nullcontext()
+    try:
+        from threadpoolctl import threadpool_limits
+    except Exception:  # pragma: no cover - threadpoolctl is a declared dependency
+        return contextlib.nullcontext()
+    return threadpool_limits(limits=int(n), user_api="blas")

@@ -1,0 +1,229 @@
+"""What users run, timed: `harbor.solve` and `harbor map` on the demo, old and new code.
+
+    python3 benchmarks/solve_map.py [--spacing 5 2.5 1.25] [--old-up-to 2.5] [--no-map]
+                                    [--blas]
+
+For every grid spacing it times, in one process and side by side:
+
+* ``harbor.solve`` per sea state of the demo, split into stages: the general method
+  (per-component numpy ``general_field`` before, the fused compiled
+  ``general_components`` now), the gap kernels inside the basin and at the hand-over,
+  the direction-free geometry (visibility, basin, blend), and the rest of ``solve``
+  (grid, land mask, validity);
+* ``harbor map`` end to end (``solve`` of every sea state + ``write_all``), with the
+  output stage apart and the time spent in the arm mask;
+* with ``--climate``, ``harbor climate`` on the demo's climate table (old, new, twice).
+
+"old" is the code before the fused kernels, reached in the same process through the
+switches it kept: ``harbor.solver.random.FUSED = False`` (per-component numpy path),
+``harbor.solver.kernels.sommerfeld.FUSED = False``, BLAS left at its default thread
+count (``SOLVER_BLAS_THREADS = None``) and the arm mask recomputed at each call. Old runs
+are skipped above ``--old-up-to`` m (at 1.25 m the old random seas take minutes each).
+``--blas`` also times the new random seas with BLAS left at its default threads.
+
+Measured (``--climate``; 2-core machine shared with other jobs, load average 6-9 during
+the run, so absolute times are inflated and noisy; old and new in the same process):
+
+    spacing  sea          old s   new s  speed-up  (new: general / gap / geometry / rest)
+    5 m      storm N       64.6    9.2    7.0x     7.1 / 0.5 / 0.2 / 1.4
+    5 m      ocean swell   76.7    8.7    8.9x     6.8 / 0.6 / 0.2 / 1.0
+    2.5 m    storm N      103.1   21.9    4.7x    18.9 / 0.9 / 0.6 / 1.6
+    2.5 m    ocean swell  114.7   20.6    5.6x    17.1 / 1.0 / 0.6 / 1.9
+    1.25 m   storm N          -   94.0            82.0 / 3.6 / 2.9 / 5.4
+    1.25 m   ocean swell      -   79.9            70.0 / 3.9 / 2.3 / 3.7
+    harbor map 5 m: old 101.7 s (solve 91.5), new 76.4 s (solve 48.6; the new run came
+    first and paid the writers' first use, since warmed); 2.5 m: old 248.4 s (solve
+    225.1, arm mask 7.8 s), new 75.9 s (solve 61.1, arm mask 0.15 s); 1.25 m: new 213.6 s
+    (solve 185.6). The regular sea is solved full-field (13-25 s, unchanged).
+    harbor climate, demo table: old 26.9 / 22.2 s, new 4.8 / 5.1 s.
+
+The old path scales better with the grid than with the number of calls, so the speed-up
+falls with finer grids: what is left is the fused kernel itself, about 200 ns per point
+and component on the demo (two bends, two heads, four faces, eight obstacle segments).
+"""
+
+import argparse
+import contextlib
+import dataclasses
+import resource
+import tempfile
+import time
+from collections import defaultdict
+
+import numpy as np
+
+import harbor
+import harbor.cli
+from harbor.solver.assemble import grid_coordinates
+from harbor.outputs import export as _export
+from harbor.outputs import gis as _gis
+from harbor.outputs import maps as _maps
+from harbor.outputs import read as _read
+from harbor.solver import random as _random
+from harbor.solver.kernels import _compiled
+from harbor.solver.kernels import sommerfeld as _somm
+
+STAGES = {
+    "general": ["general_field", "general_components"],
+    "gap": ["gap_exact_energy", "gap_superposition", "gap_field", "gap_exact_many"],
+    "geometry": ["head_visibility", "basin_mask", "entrance_blend"],
+}
+
+_clock = defaultdict(float)
+_calls = defaultdict(int)
+
+
+def _timed(stage, fn):
+    def wrapper(*a, **k):
+        t0 = time.perf_counter()
+        try:
+            return fn(*a, **k)
+        finally:
+            _clock[stage] += time.perf_counter() - t0
+            _calls[stage] += 1
+    return wrapper
+
+
+def _instrument():
+    for stage, names in STAGES.items():
+        for n in names:
+            setattr(_random, n, _timed(stage, getattr(_random, n)))
+    plain_mask = _read.arm_mask
+    for mod in (_export, _maps, _gis):
+        mod.arm_mask = _timed("arm_mask", lambda r, _f=plain_mask: _f(r))
+
+
+@contextlib.contextmanager
+def code(old):
+    """Switch between the former code paths and the new ones."""
+    saved = (_random.FUSED, _somm.FUSED, _compiled.SOLVER_BLAS_THREADS)
+    if old:
+        _random.FUSED, _somm.FUSED, _compiled.SOLVER_BLAS_THREADS = False, False, None
+    try:
+        yield
+    finally:
+        _random.FUSED, _somm.FUSED, _compiled.SOLVER_BLAS_THREADS = saved
+
+
+def _arm_cache(old):
+    if old:
+        _read._ARM_MASKS.clear()
+
+
+def scenario_at(spacing):
+    sc = harbor.load_scenario(harbor.cli.demo_path())
+    return dataclasses.replace(sc, grid=dataclasses.replace(sc.grid, spacing=spacing,
+                                                            ground_spacing=None))
+
+
+def time_solve(sc, old):
+    rows = []
+    for sea in sc.seas:
+        _clock.clear()
+        _calls.clear()
+        with code(old):
+            t0 = time.perf_counter()
+            harbor.solve(sc, sea=sea.name)
+            wall = time.perf_counter() - t0
+        parts = {s: _clock[s] for s in STAGES}
+        parts["rest"] = wall - sum(parts.values())
+        rows.append((sea.name, sea.kind, wall, parts))
+    return rows
+
+
+def time_map(sc, old):
+    _clock.clear()
+    _calls.clear()
+    with code(old), tempfile.TemporaryDirectory() as tmp:
+        _arm_cache(old)
+        if old:
+            # the former arm mask: computed at every call
+            real = _read.arm_mask
+            for mod in (_export, _maps, _gis):
+                mod.arm_mask = _timed("arm_mask", lambda r, _f=real: (_read._ARM_MASKS.clear(),
+                                                                       _f(r))[1])
+        t0 = time.perf_counter()
+        ds = harbor.solve(sc)
+        t1 = time.perf_counter()
+        _export.write_all(ds, tmp)
+        t2 = time.perf_counter()
+        if old:
+            for mod in (_export, _maps, _gis):
+                mod.arm_mask = _timed("arm_mask", lambda r, _f=real: _f(r))
+    return t2 - t0, t1 - t0, t2 - t1, _calls["arm_mask"], _clock["arm_mask"]
+
+
+def _demo_climate():
+    from pathlib import Path
+
+    return str(Path(__file__).resolve().parents[1] / "scenarios" / "demo-climate.csv")
+
+
+def main(argv=None):
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--spacing", type=float, nargs="+", default=[5.0, 2.5, 1.25])
+    ap.add_argument("--old-up-to", type=float, default=2.5,
+                    help="run the old code only at spacings >= this (m)")
+    ap.add_argument("--no-map", action="store_true", help="time harbor.solve only")
+    ap.add_argument("--climate", action="store_true",
+                    help="also time harbor climate on the demo table, old and new")
+    ap.add_argument("--blas", action="store_true",
+                    help="also time the new random seas with BLAS at its default threads")
+    args = ap.parse_args(argv)
+    import os
+
+    _instrument()
+    # compile and warm every kernel once (numba caches to disk; this loads them)
+    warm = scenario_at(40.0)
+    for old in (True, False):
+        time_solve(warm, old)
+    if not args.no_map:
+        time_map(warm, False)       # first use of matplotlib, fonts, GDAL drivers
+    print(f"load average at start: {os.getloadavg()[0]:.1f}")
+    for h in args.spacing:
+        sc = scenario_at(h)
+        gx = grid_coordinates(sc.grid)
+        print(f"\n== demo at {h:g} m: {gx[0].size} x {gx[1].size} nodes ==")
+        runs = [False] + ([True] if h >= args.old_up_to else [])
+        res = {old: time_solve(sc, old) for old in runs}
+        print(f"{'sea':14s} {'kind':8s} {'code':4s} {'wall s':>8s} {'general':>8s} "
+              f"{'gap':>7s} {'geom':>7s} {'rest':>7s} {'speed-up':>8s}")
+        for i, (name, kind, wall, parts) in enumerate(res[False]):
+            for old in runs:
+                n, kd, w, p = res[old][i]
+                up = res[True][i][2] / w if True in res else float("nan")
+                print(f"{n:14s} {kd:8s} {'old' if old else 'new':4s} {w:8.2f} "
+                      f"{p['general']:8.2f} {p['gap']:7.2f} {p['geometry']:7.2f} "
+                      f"{p['rest']:7.2f} {'' if old else f'{up:7.1f}x'}")
+        if args.blas:
+            saved = _compiled.SOLVER_BLAS_THREADS
+            _compiled.SOLVER_BLAS_THREADS = None
+            try:
+                for name, kind, wall, parts in time_solve(sc, False):
+                    if kind == "random":
+                        print(f"{name:14s} {kind:8s} new, BLAS default threads: {wall:.2f} s")
+            finally:
+                _compiled.SOLVER_BLAS_THREADS = saved
+        if not args.no_map:
+            for old in runs:
+                tot, ts, to, n_mask, t_mask = time_map(sc, old)
+                print(f"harbor map ({'old' if old else 'new'}): {tot:.1f} s = solve {ts:.1f} s "
+                      f"+ outputs {to:.1f} s (arm mask: {n_mask} calls, {t_mask:.2f} s)")
+        print(f"load average now: {os.getloadavg()[0]:.1f}")
+    if args.climate:
+        from harbor.study.climate import climate_downtime, read_climate
+
+        sc = harbor.load_scenario(harbor.cli.demo_path())
+        table = read_climate(_demo_climate())
+        for old in (True, False, True, False):
+            with code(old):
+                t0 = time.perf_counter()
+                climate_downtime(sc, table)
+                print(f"harbor climate on the demo table ({'old' if old else 'new'}): "
+                      f"{time.perf_counter() - t0:.1f} s")
+    rss = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+    print(f"\npeak RSS of the whole run: {rss:.0f} MB")
+
+
+if __name__ == "__main__":
+    main()
