@@ -218,10 +218,12 @@ def test_lonlat_scenario_points_csv_in_lonlat(tmp_path, capsys):
     # The points CSV of a map run gives x, y in the scenario's CRS, as `harbor points`
     # does: for an EPSG:4326 scenario, lon/lat (GeoJSON order, RFC 7946).
     src = ROOT / "tests" / "data" / "lonlat_harbour.toml"
-    code, _, err = run(["map", str(src), "--out", str(tmp_path / "m"), "--quiet"], capsys)
+    # (screening: a test of coordinates, not of the full-field method this layout gets)
+    code, _, err = run(["map", str(src), "--out", str(tmp_path / "m"), "--quiet",
+                        "--method", "screening"], capsys)
     assert code == 0, err
     rows = list(csv.DictReader((tmp_path / "m" / "points.csv").open()))
-    code, out, _ = run(["points", str(src)], capsys)
+    code, out, _ = run(["points", str(src), "--method", "screening"], capsys)
     ref = list(csv.DictReader(io.StringIO(out)))
     for r, q in zip(rows, ref):
         assert -12.01 < float(r["x"]) < -11.99 and 56.99 < float(r["y"]) < 57.01

@@ -140,6 +140,16 @@ def solve_sea(scenario, sea, px, py, method="auto", progress=None):
     return res.kd, res.period_ratio, name, res.reaching
 
 
+def _grid_corners(scenario):
+    """The corners of the scenario's grid (work frame): the full-field model covers the
+    map's area whether the grid or only the points are solved, so that ``harbor points``
+    and ``harbor map`` solve one and the same model."""
+    if scenario.grid is None:
+        return np.zeros((0, 2))
+    x0, y0, x1, y1 = scenario.grid.bounds
+    return np.array([[x0, y0], [x1, y0], [x1, y1], [x0, y1]], float)
+
+
 def _grid_nodes(scenario, grid=True):
     """Grid axes, node arrays and the dry mask (land, on an arm) of a scenario."""
     if grid and scenario.grid is not None:
@@ -537,12 +547,14 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
             if model is None and (agitation.has_survey(scenario) or scenario.reflection
                                   or method == "full-field"
                                   or scenario.method in ("auto", "full-field")):
-                model = _lazy_model(scenario, np.concatenate([wet_xy, pnt_xy]))
+                model = _lazy_model(scenario, np.concatenate([wet_xy, pnt_xy,
+                                                              _grid_corners(scenario)]))
             choice = agitation.choose_method(scenario, s, method=method, point_xy=pnt_xy,
                                              wet_xy=wet_xy, model=model)
         reasons.append(choice.reason)
         if choice.full_field:
             k, r, mname, reach, fnotes = solve_sea_full_field(ground, s, model.get(), cb)
+            k, r = k[:allx.size], r[:allx.size]   # the grid's corners only set the model area
         else:
             any_screening = True
             k, r, mname, reach = solve_sea(ground, s, allx, ally, method=choice.method,
