@@ -404,7 +404,8 @@ def test_climate_with_reflecting_walls_goes_full_field_once_per_period(tmp_path,
     one = harbor.solve(sc.__class__(**{**sc.__dict__, "seas": (
         Sea("a", "random", 1.0, 12.0, 20.0, spreading=10.0),)}), grid=False)
     assert str(one.sea_method.values[0]) == METHOD_FULL_FIELD
-    np.testing.assert_allclose(res.kd.values[1], one.point_kd.values[0], atol=1e-6)
+    # (several directions share the capped bands' solves: interpolated in direction)
+    np.testing.assert_allclose(res.kd.values[1], one.point_kd.values[0], atol=2e-3)
     np.testing.assert_allclose(res.point_height.values[:, 0],
                                res.kd.values[:, 0] * np.array([1.0, 2.0, 1.5]), rtol=1e-12)
 

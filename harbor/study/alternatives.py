@@ -143,7 +143,11 @@ def _full_field_group(scenario, task, choice):
     from harbor.solver.agitation import model_for
     from harbor.waves.spectra import random_components
 
-    model = model_for(scenario)
+    from harbor.solver.assemble import _grid_corners
+
+    # the model of harbor.solve: the points and the map's area
+    pts = np.array([p.at for p in scenario.points], float).reshape(-1, 2)
+    model = model_for(scenario, points=np.concatenate([pts, _grid_corners(scenario)]))
     site = scenario.site
     ground = site.ground_site() if not site.is_lonlat else site
     comps = random_components(1.0, task["period"], s_max=task["spreading"])
@@ -154,7 +158,7 @@ def _full_field_group(scenario, task, choice):
     if not isinstance(res, (list, tuple)):  # an engine that takes one direction at a time
         res = [res] + [model.random(comps, d, max_unknowns=band_cap()) for d in dirs[1:]]
     w = float(np.sum(comps.weight))
-    kd = [r.kd_points.copy() for r in res]
+    kd = [r.kd_points[:len(pts)].copy() for r in res]
     reach = [float(r.reaching / w) if w > 0 else 0.0 for r in res]
     warns = list(dict.fromkeys(str(n) for n in model.notices))
     return kd, reach, warns
