@@ -83,20 +83,22 @@ def short_caution(screening: bool = True, full_field: bool = False) -> str:
     return CAUTION_SHORT
 
 
-def result_cautions(ds) -> tuple:
-    """The cautions of a solved result (:func:`harbor.solve`), as a tuple of lines."""
+def _result_methods(ds) -> dict:
+    """``screening`` and ``full_field``: which methods produced a solved result."""
     ff = bool(int(ds.attrs.get("full_field", 0) or 0))
     methods = [str(m) for m in ds["sea_method"].values] if "sea_method" in ds else []
     scr = (not methods) or any("full-field" not in m for m in methods)
-    return caution_lines(screening=scr, full_field=ff)
+    return {"screening": scr, "full_field": ff}
+
+
+def result_cautions(ds) -> tuple:
+    """The cautions of a solved result (:func:`harbor.solve`), as a tuple of lines."""
+    return caution_lines(**_result_methods(ds))
 
 
 def result_short_caution(ds) -> str:
     """The one-line caution of a solved result."""
-    ff = bool(int(ds.attrs.get("full_field", 0) or 0))
-    methods = [str(m) for m in ds["sea_method"].values] if "sea_method" in ds else []
-    scr = (not methods) or any("full-field" not in m for m in methods)
-    return short_caution(screening=scr, full_field=ff)
+    return short_caution(**_result_methods(ds))
 
 
 class Notice(str):

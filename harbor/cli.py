@@ -206,6 +206,7 @@ def _secs(seconds):
 
 
 def _print_item_list(items, seas, file=None):
+    """Notices grouped: those about every sea state first, then each sea state's own."""
     file = file or sys.stdout
     if not items:
         return
@@ -223,20 +224,7 @@ def _print_item_list(items, seas, file=None):
 
 def _print_notices(ds, notices, file=None):
     """The warnings of a result, grouped: every sea state first, then each one's own."""
-    items = list(dict.fromkeys(notices(ds)))
-    if not items:
-        return
-    file = file or sys.stdout
-    print("warnings:", file=file)
-    for n in items:
-        if n.sea is None:
-            print(f"  - {n.text}", file=file)
-    for s in [str(v) for v in ds.sea.values]:
-        own = [n for n in items if n.sea == s]
-        if own:
-            print(f"  sea state '{s}':", file=file)
-            for n in own:
-                print(f"    - {n.text}", file=file)
+    _print_item_list(list(dict.fromkeys(notices(ds))), [str(v) for v in ds.sea.values], file)
 
 
 def _print_warnings(warnings):

@@ -102,6 +102,35 @@ def unique_slugs(names, fallback: str = "sea") -> list[str]:
     return out
 
 
+def write_staged(out_dir, texts, chart=None):
+    """Write text files and one chart into ``out_dir``, all or none.
+
+    Parameters
+    ----------
+    out_dir : str or os.PathLike
+        Output folder (created if missing).
+    texts : sequence of (str, str)
+        (file name, text) pairs, written as UTF-8 with the text's own newlines.
+    chart : (str, callable), optional
+        (file name, ``draw(path)``) for a figure written by the caller's function.
+
+    Returns
+    -------
+    list of pathlib.Path
+        The published files, texts first, in order.
+    """
+    names = [n for n, _ in texts] + ([chart[0]] if chart else [])
+    with staging_dir(out_dir) as (stage, staged):
+        for name, text in texts:
+            with open(stage / name, "w", encoding="utf-8", newline="") as fh:
+                fh.write(text)
+            staged.append(name)
+        if chart:
+            chart[1](stage / chart[0])
+            staged.append(chart[0])
+    return [Path(out_dir) / n for n in names]
+
+
 @contextlib.contextmanager
 def staging_dir(out_dir):
     """Yield a fresh staging directory for a multi-file run; publish it on success.

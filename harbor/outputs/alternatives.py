@@ -220,14 +220,8 @@ def write_alternatives(ds, out_dir, title=None):
     -------
     list of pathlib.Path
     """
-    from harbor.outputs._atomic import staging_dir
+    from harbor.outputs._atomic import write_staged
 
-    with staging_dir(out_dir) as (stage, staged):
-        for f, text in ((FILES[0], alternatives_csv_text(ds)),
-                        (FILES[1], alternatives_rows_csv_text(ds))):
-            with open(stage / f, "w", encoding="utf-8", newline="") as fh:
-                fh.write(text)
-            staged.append(f)
-        plot_alternatives(ds, stage / FILES[2], title=title)
-        staged.append(FILES[2])
-    return [Path(out_dir) / f for f in FILES]
+    return write_staged(out_dir, [(FILES[0], alternatives_csv_text(ds)),
+                                  (FILES[1], alternatives_rows_csv_text(ds))],
+                        (FILES[2], lambda p: plot_alternatives(ds, p, title=title)))

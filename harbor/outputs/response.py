@@ -225,15 +225,8 @@ def write_response(ds, out_dir, title=None):
     -------
     list of pathlib.Path
     """
-    from harbor.outputs._atomic import staging_dir
+    from harbor.outputs._atomic import write_staged
 
-    files = ["response.csv", "natural-periods.csv", "response.png"]
-    with staging_dir(out_dir) as (stage, staged):
-        for name, text in ((files[0], response_csv_text(ds)),
-                           (files[1], natural_csv_text(ds))):
-            with open(stage / name, "w", encoding="utf-8", newline="") as fh:
-                fh.write(text)
-            staged.append(name)
-        plot_response(ds, stage / files[2], title=title)
-        staged.append(files[2])
-    return [Path(out_dir) / f for f in files]
+    return write_staged(out_dir, [("response.csv", response_csv_text(ds)),
+                                  ("natural-periods.csv", natural_csv_text(ds))],
+                        ("response.png", lambda p: plot_response(ds, p, title=title)))

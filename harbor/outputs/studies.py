@@ -265,19 +265,11 @@ def write_sweep(table, out_dir):
     -------
     list of pathlib.Path
     """
-    from pathlib import Path
-
-    from harbor.outputs._atomic import slug, staging_dir
+    from harbor.outputs._atomic import slug, write_staged
 
     name = slug(table.attrs.get("arm", "arm"), "arm")
-    files = [f"sweep-{name}.csv", f"sweep-{name}.png"]
-    with staging_dir(out_dir) as (stage, staged):
-        with open(stage / files[0], "w", encoding="utf-8", newline="") as fh:
-            fh.write(sweep_csv_text(table))
-        staged.append(files[0])
-        plot_sweep(table, stage / files[1])
-        staged.append(files[1])
-    return [Path(out_dir) / f for f in files]
+    return write_staged(out_dir, [(f"sweep-{name}.csv", sweep_csv_text(table))],
+                        (f"sweep-{name}.png", lambda p: plot_sweep(table, p)))
 
 
 # --------------------------------------------------------------------------- climate
@@ -506,18 +498,11 @@ def write_climate(result, out_dir, title=None):
     -------
     list of pathlib.Path
     """
-    from harbor.outputs._atomic import staging_dir
+    from harbor.outputs._atomic import write_staged
 
-    files = ["downtime.csv", "climate-rows.csv", "downtime.png"]
-    with staging_dir(out_dir) as (stage, staged):
-        for f, text in ((files[0], downtime_csv_text(result)),
-                        (files[1], rows_csv_text(result))):
-            with open(stage / f, "w", encoding="utf-8", newline="") as fh:
-                fh.write(text)
-            staged.append(f)
-        plot_downtime(result, stage / files[2], title=title)
-        staged.append(files[2])
-    return [Path(out_dir) / f for f in files]
+    return write_staged(out_dir, [("downtime.csv", downtime_csv_text(result)),
+                                  ("climate-rows.csv", rows_csv_text(result))],
+                        ("downtime.png", lambda p: plot_downtime(result, p, title=title)))
 
 
 __all__ = ["sweep_rows", "climate_tables", "downtime_csv_text", "downtime_text", "plot_downtime", "plot_sweep",

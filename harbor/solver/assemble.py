@@ -205,13 +205,6 @@ def plan(scenario, sea=None, method="auto", grid=True):
     return out
 
 
-def agitation_survey(scenario) -> bool:
-    """True when the scenario has a depth survey (its depth varies)."""
-    from harbor.solver.agitation import has_survey
-
-    return has_survey(scenario)
-
-
 class _lazy_model:
     """The scenario's full-field model, built on first use and shared by its sea states
     (factorisations are cached per period inside it)."""
@@ -511,7 +504,9 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
     valid = np.ones((ns, ny, nx), bool)
     pvalid = np.ones((ns, npnt), bool)
     wet = ~dry
-    survey = scenario.bathymetry if agitation_survey(scenario) else None
+    from harbor.solver.agitation import has_survey
+
+    survey = scenario.bathymetry if has_survey(scenario) else None
     if survey is None:
         gdepth = np.where(dry, np.nan, float(site.depth))
         pdepth = np.full(npnt, float(site.depth))
@@ -544,9 +539,7 @@ def solve(scenario, sea=None, points=None, grid=True, method="auto", progress=No
         if method == "field":
             choice = agitation.Choice("field", agitation.REASONS["forced"].format(m="field"))
         else:
-            if model is None and (agitation.has_survey(scenario) or scenario.reflection
-                                  or method == "full-field"
-                                  or scenario.method in ("auto", "full-field")):
+            if model is None:  # built (meshed) only if a sea state goes full-field
                 model = _lazy_model(scenario, np.concatenate([wet_xy, pnt_xy,
                                                               _grid_corners(scenario)]))
             choice = agitation.choose_method(scenario, s, method=method, point_xy=pnt_xy,

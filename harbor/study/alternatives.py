@@ -54,7 +54,7 @@ def _task_sea(task, direction, name="climate case"):
                from_deg=direction, spreading=task["spreading"])
 
 
-def _task_choice(scenario, method, task):
+def _task_choice(scenario, method, task, model=None):
     """The method of one task, decided once for all its directions (the reasons of
     :func:`harbor.solver.agitation.choose_method` that depend on the direction are
     taken over the task's directions: any direction needing the full field takes the
@@ -65,7 +65,7 @@ def _task_choice(scenario, method, task):
     first = None
     for d in task["directions"]:
         c = agitation.choose_method(scenario, _task_sea(task, d), method=method,
-                                    point_xy=pts)
+                                    point_xy=pts, model=model)
         first = first or c
         if c.full_field or c.needed:
             return c
@@ -100,17 +100,21 @@ def plan_tasks(shared, tasks, budget=CLIMATE_FULL_FIELD_BUDGET):
     import dataclasses as _dc
 
     from harbor.solver import agitation
-    from harbor.solver.agitation import model_for
+    from harbor.solver.assemble import _grid_corners, _lazy_model
 
     models = {}
     total, mem, n_ff = 0.0, 0.0, 0
     for t in tasks:
         sc = shared["scenarios"][t["alternative"]]
-        c = _task_choice(sc, shared["method"], t)
+        # one (lazy) model per alternative: its domains are cached per period, so the
+        # choice's estimate and the study's estimate share them
+        m = models.get(t["alternative"])
+        if m is None:
+            pts = np.array([p.at for p in sc.points], float).reshape(-1, 2)
+            m = models[t["alternative"]] = _lazy_model(
+                sc, np.concatenate([pts, _grid_corners(sc)]))
+        c = _task_choice(sc, shared["method"], t, model=m)
         if c.full_field:
-            m = models.get(t["alternative"])
-            if m is None:
-                m = models[t["alternative"]] = model_for(sc)
             e = agitation.estimate(m, agitation.sea_periods(_task_sea(t, t["directions"][0])),
                                    random=True, n_directions=len(t["directions"])
                                    * agitation._n_dir())

@@ -541,7 +541,7 @@ def climate_downtime(scenario, table, method="auto", workers=None, progress=None
     else:
         hb = BREAKING_RATIO * scenario.site.depth
         hb_text = f"0.78 h = {hb:.2f} m"
-    over = heights > np.asarray(hb)[None, ...] if np.ndim(hb) else heights > hb
+    over = heights > hb            # (rows, points) against one depth or one per point
     if over.any():
         bad = tab.index[over.any(axis=1)]
         listed = ", ".join(str(r) for r in bad[:10]) + (" ..." if len(bad) > 10 else "")

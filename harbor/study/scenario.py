@@ -416,7 +416,7 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
     layout, points, allxy = _build_layout(r, site, work, raw_arms, raw_lands, raw_points)
     grid = _grid_spec(r, work, raw_bounds, spacing, allxy, seas, depth, g,
                       scale=float(site.scale_factor))
-    reflection, footprints = _read_walls(r, arm_ts_of(data), data.get("land", []) or [],
+    reflection, footprints = _read_walls(r, data.get("arm", []) or [], data.get("land", []) or [],
                                          raw_lands, layout, points, raw_points)
     bath = None
     if "bathymetry" in data:
@@ -427,11 +427,6 @@ def scenario_from_dict(data: dict, path: str = "") -> Scenario:
                     layout=layout, seas=tuple(seas), points=tuple(points), grid=grid,
                     bathymetry=bath, reflection=reflection, footprints=footprints,
                     method=method)
-
-
-def arm_ts_of(data):
-    """The ``[[arm]]`` tables of a parsed scenario (already checked to be tables)."""
-    return list(data.get("arm", []) or [])
 
 
 def _read_walls(r, arm_ts, land_ts, raw_lands, layout, points, raw_points):
