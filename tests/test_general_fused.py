@@ -113,10 +113,11 @@ def test_fused_matches_numpy_general_method_on_the_demo(demo_scenario):
         assert lit[c] == n_lit
 
 
-def test_fused_random_sea_matches_numpy_path_through_a_classic_entrance():
+def test_fused_random_sea_matches_numpy_path_through_a_classic_entrance(monkeypatch):
     # Two collinear arms rooted in land (a classic entrance): the gap kernels inside the
     # basin, the fused general method outside and the hand-over on the sea side; and a
-    # detached breakwater (general method everywhere). Both against the numpy path.
+    # detached breakwater (general method everywhere). Both against the numpy path, with
+    # the components taken as regular seas as that path takes them (no cell averaging).
     from harbor.geometry.layout import Land
     from harbor.solver import random as R
     from harbor.waves import random_components
@@ -130,6 +131,7 @@ def test_fused_random_sea_matches_numpy_path_through_a_classic_entrance():
     gx, gy = np.meshgrid(np.linspace(-200, 200, 15), np.linspace(-150, 250, 15))
     x, y = gx.ravel(), gy.ravel() + 0.37
     comps = random_components(1.0, 7.0, s_max=10, n_freq=5, n_dir=11)
+    monkeypatch.setattr(R, "CELL_AVERAGED", False)
     for i, lay in enumerate((Layout(arms=arms, lands=(land,)),
                              Layout(arms=(Arm("d", np.array([[-150.0, 0.0], [150.0, 0.0]])),)))):
         new = R.random_sea_field(lay, x, y, comps, 12.0, np.radians(70))

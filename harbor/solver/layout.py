@@ -688,7 +688,7 @@ def _kernel_threads(work):
 
 
 def general_components(layout, px, py, wavelengths, alphas, weights=None, fweights=None,
-                       segments=None, visible=None, field=False):
+                       segments=None, visible=None, field=False, cells=None):
     r"""Many components of the general method at once (first order), fused and compiled.
 
     Parameters
@@ -706,6 +706,11 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
         Output of :func:`head_visibility` for the same points (to reuse).
     field : bool
         Return the fields instead of the energy.
+    cells : tuple of numpy.ndarray, optional
+        ``(dalpha, dk)``: each component's cell of the spectrum, its width in direction
+        (rad) and in wavenumber (rad/m), energy mode only. The interference of the
+        component's waves is then averaged over the cell (see Notes); without it each
+        component is a regular sea.
 
     Returns
     -------
@@ -726,6 +731,23 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
     faces, reflected directions, lit edges, the local frames and sectors of the edges)
     is prepared once per component, what depends only on the point once per point.
 
+    With ``cells``, a component stands for its cell of the directional spectrum, and the
+    cross terms of its waves are integrated over the cell as Filon's rule integrates an
+    oscillating factor [3]_: the waves' amplitudes are taken as constant across the cell
+    and their phases ``k s_m(alpha)`` (``s_m`` the path length of wave m) as linear in
+    direction and wavenumber, so the cross term of waves m and n is multiplied by
+
+    .. math::
+
+        \operatorname{sinc}\!\left(\tfrac{k\,\Delta\alpha}{2}
+            \,\partial_\alpha (s_m - s_n)\right)
+        \operatorname{sinc}\!\left(\tfrac{\Delta k}{2}\,(s_m - s_n)\right).
+
+    Near a structure (path difference small against the cell's coherence length) the
+    factor is 1 and the component is the regular sea; far in front of a reflecting face
+    the incident-reflected standing wave of a broad cell, which a fixed set of regular
+    components can only sample, averages out as the integral over the spectrum does.
+
     References
     ----------
     .. [1] Penney, W. G., & Price, A. T. (1952). The diffraction theory of sea waves and
@@ -734,6 +756,8 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
     .. [2] Kouyoumjian, R. G., & Pathak, P. H. (1974). A uniform geometrical theory of
        diffraction for an edge in a perfectly conducting surface. *Proceedings of the
        IEEE*, 62(11), 1448-1461.
+    .. [3] Filon, L. N. G. (1928). On a quadrature formula for trigonometric integrals.
+       *Proc. R. Soc. Edinburgh*, 49, 38-47.
     """
     from harbor.solver.kernels import general as _gk
 
@@ -747,6 +771,12 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
     nc, n = als.size, px.size
     w = np.zeros(nc) if weights is None else np.asarray(weights, float)
     wf2 = np.zeros(nc) if fweights is None else np.asarray(fweights, float)
+    if cells is None or field:
+        cda = np.zeros(nc)
+        cdk = np.zeros(nc)
+    else:
+        cda = np.broadcast_to(np.asarray(cells[0], float), (nc,))
+        cdk = np.broadcast_to(np.asarray(cells[1], float), (nc,))
     e0 = np.zeros(n)
     e2 = np.zeros(n)
     out_field = np.zeros((nc, n) if field else (1, 1), complex)
@@ -776,6 +806,7 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
         ray_scale = ray_scale or 1.0
         k = 2 * np.pi / Ls[cs]
         dxy = np.stack([np.cos(als[cs]), np.sin(als[cs])], axis=1)
+        dxy_a = np.stack([-dxy[:, 1], dxy[:, 0]], axis=1)    # d(direction)/d(alpha)
         ncs = cs.size
         # faces: the seaward side of each arm segment for each direction
         face_seg = np.array([i for i, o in enumerate(owner) if o.startswith("arm:")], np.int64)
@@ -785,6 +816,8 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
         fr = np.zeros((ncs, nf, 2))
         frn = np.ones((ncs, nf))
         fph = np.zeros((ncs, nf))
+        fpa = np.zeros((ncs, nf))
+        fra = np.zeros((ncs, nf, 2))
         for f, si in enumerate(face_seg):
             a, b = seg[si]
             t = b - a
@@ -797,6 +830,9 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
             fr[:, f] = dr
             frn[:, f] = np.sum(dr * nn, axis=1)
             fph[:, f] = dxy @ a
+            # the image's direction turns the other way as the direction of travel turns
+            fpa[:, f] = dxy_a @ a
+            fra[:, f] = dxy_a - 2 * np.sum(dxy_a * nn, axis=1)[:, None] * nn
         # edges: lit or not, their local frames (heads) and struck sectors (bends)
         edges = diffracting_edges(lay)
         ne = len(edges)
@@ -875,6 +911,10 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
             np.ascontiguousarray(elit), np.ascontiguousarray(eph.real),
             np.ascontiguousarray(eph.imag), eysgn, c0, s0, bface0, bwater, bphi0, bn,
             bcfg, cfg_face0, cfg_n, cfg_cpn, cfg_spn, cfg_tabc, cfg_tabs, q2c, q2s, qnc, qns,
+            np.ascontiguousarray(0.5 * k * cda[cs]), np.ascontiguousarray(0.5 * cdk[cs]),
+            fpa, np.ascontiguousarray(fra[..., 0]), np.ascontiguousarray(fra[..., 1]),
+            np.ascontiguousarray(dxy @ tips.T).reshape(ncs, ne),
+            np.ascontiguousarray(dxy_a @ tips.T).reshape(ncs, ne),
             1 if field else 0)
 
         def run(lo, hi):
@@ -885,13 +925,17 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
                                    e0[lo:hi], e2[lo:hi], sub_any, sub_field)
             return lo, hi, sub_any, sub_field
 
-        cuts = np.linspace(0, n, _kernel_threads(n * ncs) + 1).astype(int)
+        threads = _kernel_threads(n * ncs)
+        # several ranges per thread, taken as threads come free: the work per point varies
+        # (open sea, shadow, land) and one range per thread leaves one of them idle
+        pieces = 1 if threads == 1 else min(8 * threads, max(threads, n // 2048))
+        cuts = np.linspace(0, n, pieces + 1).astype(int)
         spans = [(int(a), int(b)) for a, b in zip(cuts[:-1], cuts[1:]) if b > a]
         if len(spans) > 1:
             # the compiled loop releases the GIL: the point ranges run side by side
             from concurrent.futures import ThreadPoolExecutor
 
-            with ThreadPoolExecutor(len(spans)) as pool:
+            with ThreadPoolExecutor(threads) as pool:
                 parts = list(pool.map(lambda ab: run(*ab), spans))
         else:
             parts = [run(*ab) for ab in spans]

@@ -57,6 +57,64 @@ class RandomResult:
     reaching: float = 0.0                             # share of energy from open water
 
 
+#: Average each component's interference over its cell of the spectrum (see
+#: :func:`harbor.solver.layout.general_components`); False treats every component as a
+#: regular sea, as the per-component numpy path does.
+CELL_AVERAGED = True
+
+
+def _neighbour_widths(v):
+    """Width of each value's cell between the midpoints to its sorted neighbours (the end
+    cells as wide as their one neighbour gap); 0 for a single value."""
+    v = np.asarray(v, float)
+    out = np.zeros(v.size)
+    if v.size < 2:
+        return out
+    order = np.argsort(v)
+    s = v[order]
+    gaps = np.diff(s)
+    w = np.empty(s.size)
+    w[1:-1] = 0.5 * (gaps[1:] + gaps[:-1])
+    w[0] = gaps[0]
+    w[-1] = gaps[-1]
+    out[order] = w
+    return out
+
+
+def spectral_cells(frequency, angle, depth, g=9.81):
+    """Each component's cell of the discretised spectrum: direction width (rad) within
+    its frequency band and wavenumber width (rad/m) among the bands, each between the
+    midpoints to the neighbouring nodes.
+
+    Parameters
+    ----------
+    frequency, angle : numpy.ndarray
+        The components' frequencies (Hz) and direction offsets (rad), as in
+        :class:`harbor.waves.spectra.Components`.
+    depth : float
+        Water depth (m).
+    g : float
+        Gravity (m/s^2).
+
+    Returns
+    -------
+    dalpha, dk : numpy.ndarray
+        Per component.
+    """
+    frequency = np.asarray(frequency, float)
+    angle = np.asarray(angle, float)
+    bands = np.unique(frequency)
+    kb = np.array([2 * np.pi / float(_wavelength(1.0 / f, depth, g)) for f in bands])
+    dkb = _neighbour_widths(kb)
+    dalpha = np.zeros(frequency.size)
+    dk = np.zeros(frequency.size)
+    for f, d in zip(bands, dkb):
+        sel = frequency == f
+        dalpha[sel] = _neighbour_widths(angle[sel])
+        dk[sel] = d
+    return dalpha, dk
+
+
 def _progress_noop(done, total):
     return None
 
@@ -137,6 +195,10 @@ def _random_sea_field(layout, px, py, components, depth, principal_alpha, g, met
     segments = layout_segments(layout)
     visible_all = head_visibility(layout, xf, yf, segments)
     bands = np.unique(freq)
+    if fused and CELL_AVERAGED:
+        cell_a, cell_k = spectral_cells(freq, angle, depth, g)
+    else:
+        cell_a = cell_k = np.zeros(freq.size)
     vis_out = {}
     blend = {}
     methods: dict = {}
@@ -197,7 +259,8 @@ def _random_sea_field(layout, px, py, components, depth, principal_alpha, g, met
                 reaching += float(w[pick].sum())
         if fused:
             reaching += _general_band(layout, xf, yf, L, f, k_alpha, w, batched, inside, ent,
-                                      use_of, segments, visible_all, e0, e2, methods)
+                                      use_of, segments, visible_all, e0, e2, methods,
+                                      (cell_a[sel], cell_k[sel]))
             progress(bi + 1, bands.size)
             continue
         # the batched components still need the general method outside the basin
@@ -250,18 +313,20 @@ def _random_sea_field(layout, px, py, components, depth, principal_alpha, g, met
 
 
 def _general_band(layout, xf, yf, L, f, k_alpha, w, batched, inside, ent, use_of, segments,
-                  visible_all, e0, e2, methods):
+                  visible_all, e0, e2, methods, cells):
     """The general method's share of one frequency band, fused: the components not
     solved by the gap kernels over all points, and those that are outside the basin
     (with the same hand-over to the gap solution near the entrance as a regular sea).
-    Adds to ``e0``, ``e2`` and ``methods``; returns the energy that reaches the layout."""
+    ``cells`` are the components' cells (:func:`spectral_cells`). Adds to ``e0``, ``e2``
+    and ``methods``; returns the energy that reaches the layout."""
     reaching = 0.0
     ff = f * f
     free = np.nonzero(~batched)[0]
     if free.size:
         a0, a2, lit, reach = general_components(
             layout, xf, yf, np.full(free.size, L), k_alpha[free], w[free],
-            np.array([w[j] * f * f for j in free]), segments=segments, visible=visible_all)
+            np.array([w[j] * f * f for j in free]), segments=segments, visible=visible_all,
+            cells=(cells[0][free], cells[1][free]))
         e0 += a0
         e2 += a2
         for j, jl, jr in zip(free, lit, reach):
@@ -283,7 +348,8 @@ def _general_band(layout, xf, yf, L, f, k_alpha, w, batched, inside, ent, use_of
     if rest.size:
         a0, a2, _, _ = general_components(
             layout, ox[rest], oy[rest], np.full(bat.size, L), k_alpha[bat], w[bat], wfs,
-            segments=segments, visible=[v[rest] for v in vis_o])
+            segments=segments, visible=[v[rest] for v in vis_o],
+            cells=(cells[0][bat], cells[1][bat]))
         e0[out_idx[rest]] += a0
         e2[out_idx[rest]] += a2
     zi = np.nonzero(zone)[0]

@@ -100,16 +100,17 @@ if HAVE_NUMBA:
 
     @numba.njit(cache=True, inline="always", error_model="numpy")
     def _ray_hit_pre(px, py, vx, vy, sx, sy, sex, sey, den, par, open0, open1, skip, scale):
-        """_ray_hit with the segments' edges and the direction's denominators precomputed."""
+        """_ray_hit with the segments' edges and the direction's reciprocal denominators
+        (``den`` holds 1 / denominator) precomputed."""
         for i in range(sx.size):
             if i == skip or par[i]:
                 continue
             wx = sx[i] - px
             wy = sy[i] - py
-            t = (wx * sey[i] - wy * sex[i]) / den[i]
+            t = (wx * sey[i] - wy * sex[i]) * den[i]
             if not t > _EPS * scale:
                 continue
-            s = (wx * vy - wy * vx) / den[i]
+            s = (wx * vy - wy * vx) * den[i]
             lo = (s > _EPS) if open0[i] else (s >= -_EPS)
             hi = (s < 1 - _EPS) if open1[i] else (s <= 1 + _EPS)
             if lo and hi:
@@ -121,21 +122,23 @@ if HAVE_NUMBA:
         """harbor.geometry.visibility.segment_blocked for one path P-Q."""
         dx = qx - px
         dy = qy - py
-        dl = np.hypot(dx, dy) + 1e-300
+        dl2 = dx * dx + dy * dy
         for i in range(sx.size):
             if i == skip:
                 continue
             ex = sex[i]
             ey = sey[i]
             den = dx * ey - dy * ex
-            if not abs(den) > 1e-14 * slen[i] * dl:
+            # |den| > 1e-14 |segment| |path|, squared: no square root per test
+            if not den * den > 1e-28 * slen[i] * slen[i] * dl2:
                 continue
+            inv = 1.0 / den
             wx = sx[i] - px
             wy = sy[i] - py
-            t = (wx * ey - wy * ex) / den
+            t = (wx * ey - wy * ex) * inv
             if not (t > _EPS and t < 1 - _EPS):
                 continue
-            s = (wx * dy - wy * dx) / den
+            s = (wx * dy - wy * dx) * inv
             if s >= -_EPS and s <= 1 + _EPS:
                 return True
         return False
@@ -186,12 +189,13 @@ if HAVE_NUMBA:
         return (c * tr - s * ti) * f, (c * ti + s * tr) * f
 
     @numba.njit(cache=True, inline="always", error_model="numpy")
-    def _wedge_pre(r, k, phi, ph2c, ph2s, phnc, phns, phi0, q2c, q2s, qnc, qns, n, cpn, spn,
-                   tabc, tabs, val, der, ntab):
+    def _wedge_pre(root, ckr, skr, phi, ph2c, ph2s, phnc, phns, phi0, q2c, q2s, qnc, qns, n,
+                   cpn, spn, tabc, tabs, val, der, ntab):
         """_wedge with the angles' sines and cosines taken from the point's (phi) and the
         direction's (phi0) precomputed ones by the addition formulas: no trigonometric
-        call away from the boundaries (|eps| > 0.1), the direct formula near them."""
-        root = np.sqrt(2.0 * k * r)
+        call away from the boundaries (|eps| > 0.1), the direct formula near them.
+        ``root`` = sqrt(2 k r) and (ckr, skr) = (cos kr, sin kr), shared by the
+        components of one wavenumber."""
         inv_2pin = 1.0 / (2.0 * np.pi * n)
         inv_2n = 0.5 / n
         tr = 0.0
@@ -230,9 +234,29 @@ if HAVE_NUMBA:
                 ar, ai = _amp(root * se, val, der, ntab)
                 tr += ratio * ar
                 ti += ratio * ai
-        c, s = _cis(k * r, _CIS_TAB)
         f = -2.0 * inv_2n
-        return (c * tr - s * ti) * f, (c * ti + s * tr) * f
+        return (ckr * tr - skr * ti) * f, (ckr * ti + skr * tr) * f
+
+    @numba.njit(cache=True, inline="always", error_model="numpy")
+    def _sinc(x):
+        if abs(x) < 1e-4:
+            return 1.0 - x * x / 6.0
+        return _cis(x, _CIS_TAB)[1] / x
+
+    @numba.njit(cache=True, inline="always", error_model="numpy")
+    def _cell_energy(ar, ai, ps, pa, nt, ha, hk):
+        """|sum of waves|^2 with each cross term averaged over the component's cell:
+        sum |a_m|^2 + 2 sum_(m<n) Re(a_m conj a_n) sinc(ha dpa) sinc(hk dps). The sinc
+        kernel is positive definite (Bochner), so the result is never negative."""
+        q = 0.0
+        for m in range(nt):
+            q += ar[m] * ar[m] + ai[m] * ai[m]
+        for m in range(nt - 1):
+            for j in range(m + 1, nt):
+                cross = ar[m] * ar[j] + ai[m] * ai[j]
+                if cross != 0.0:
+                    q += 2.0 * cross * _sinc(ha * (pa[m] - pa[j])) * _sinc(hk * (ps[m] - ps[j]))
+        return q
 
     @numba.njit(**_jit)
     def general_components(px, py, seg, open0, open1, face_seg, ray_scale,
@@ -241,11 +265,20 @@ if HAVE_NUMBA:
                            face_on, fnx, fny, frx, fry, frn, fph,
                            elit, eph_r, eph_i, eysgn, c0, s0, bface0, bwater, bphi0, bn,
                            bcfg, cfg_face0, cfg_n, cfg_cpn, cfg_spn, cfg_tabc, cfg_tabs,
-                           q2c, q2s, qnc, qns, mode, e0, e2, anyp, field):
+                           q2c, q2s, qnc, qns, hda, hdk, fpa, frax, fray, ept, epa,
+                           mode, e0, e2, anyp, field):
         """Fields of many components of the general method (first order) at many points.
 
         mode 0: ``e0 += w |u|^2``, ``e2 += wf2 |u|^2``, ``anyp[c] |= |u|^2 > 0``;
         mode 1: ``field[c, p] = u``.
+
+        In mode 0 the interference of the component's waves (incident, reflected,
+        diffracted) is averaged over its cell of the spectrum when ``hda`` or ``hdk`` is
+        non-zero: the cross term of waves m and n is multiplied by
+        ``sinc(hda[c] (pa_m - pa_n)) sinc(hdk[c] (ps_m - ps_n))``, ps being each wave's
+        path length (m) and pa its derivative with the direction of travel (m/rad);
+        ``hda = k dalpha / 2``, ``hdk = dk / 2``. ``fpa``, ``frax``/``fray``, ``ept`` and
+        ``epa`` are those derivatives' ingredients per component (face and edge).
         """
         n = px.size
         nc = kk.size
@@ -269,6 +302,8 @@ if HAVE_NUMBA:
             for i in range(m):
                 den[c, i] = (-dx[c]) * sey[i] - (-dy[c]) * sex[i]
                 par[c, i] = abs(den[c, i]) < 1e-14 * slen[i]
+                # multiplications in the innermost tests instead of divisions
+                den[c, i] = 0.0 if par[c, i] else 1.0 / den[c, i]
         sqk = np.sqrt(kk)
         rr = np.empty(ne)
         bphi = np.empty((ne, 2))
@@ -281,6 +316,14 @@ if HAVE_NUMBA:
         chp = np.empty(ne)
         shp = np.empty(ne)
         ang = np.empty(ne)
+        nt_max = 1 + nf + ne
+        tar = np.empty(nt_max)
+        tai = np.empty(nt_max)
+        tps = np.empty(nt_max)
+        tpa = np.empty(nt_max)
+        ekc = np.empty(ne)
+        eks = np.empty(ne)
+        ert = np.empty(ne)
         for p in range(n):
             x = px[p]
             y = py[p]
@@ -309,18 +352,35 @@ if HAVE_NUMBA:
                         bphns[e, g] = np.sin(0.5 * ph / cfg_n[e, g])
             e0p = 0.0
             e2p = 0.0
+            klast = -1.0
             for c in range(nc):
                 k = kk[c]
+                if k != klast:
+                    # what depends on the point and the wavenumber only: shared by the
+                    # components of one frequency band, which arrive one after another
+                    klast = k
+                    for e in range(ne):
+                        ekc[e], eks[e] = _cis(k * rr[e], _CIS_TAB)
+                        ert[e] = np.sqrt(2.0 * k * rr[e])
                 vx = -dx[c]
                 vy = -dy[c]
                 ur = 0.0
                 ui = 0.0
+                damp = mode == 0 and (hda[c] != 0.0 or hdk[c] != 0.0)
+                nt = 0
                 # incident wave
                 if not _ray_hit_pre(x, y, vx, vy, sx, sy, sex, sey, den[c], par[c], open0,
                                     open1, -1, ray_scale):
-                    cr, ci = _cis(k * (x * dx[c] + y * dy[c]), _CIS_TAB)
+                    ps = x * dx[c] + y * dy[c]
+                    cr, ci = _cis(k * ps, _CIS_TAB)
                     ur += cr
                     ui += ci
+                    if damp:
+                        tar[nt] = cr
+                        tai[nt] = ci
+                        tps[nt] = ps
+                        tpa[nt] = y * dx[c] - x * dy[c]
+                        nt += 1
                 # first-order reflection from the faces the waves strike
                 for f in range(nf):
                     if not face_on[c, f]:
@@ -348,6 +408,12 @@ if HAVE_NUMBA:
                     cr, ci = _cis(k * phase, _CIS_TAB)
                     ur += cr
                     ui += ci
+                    if damp:
+                        tar[nt] = cr
+                        tai[nt] = ci
+                        tps[nt] = phase
+                        tpa[nt] = fpa[c, f] + (x - ax) * frax[c, f] + (y - ay) * fray[c, f]
+                        nt += 1
                 # diffraction by each lit edge, where it is visible
                 for e in range(ne):
                     if not elit[c, e] or not vis[e, p]:
@@ -368,7 +434,8 @@ if HAVE_NUMBA:
                         g2 = -1.0 if s2 >= -1e-9 else 1.0
                         tr = g1 * a1r + g2 * a2r
                         ti = g1 * a1i + g2 * a2i
-                        cr, ci = _cis(k * r, _CIS_TAB)
+                        cr = ekc[e]
+                        ci = eks[e]
                         wr = cr * tr - ci * ti
                         wi = cr * ti + ci * tr
                     else:
@@ -376,7 +443,8 @@ if HAVE_NUMBA:
                         phi = bphi[e, g]
                         if not phi <= bwater[c, e] + 1e-12:
                             continue
-                        wr, wi = _wedge_pre(rr[e], k, phi, bph2c[e, g], bph2s[e, g],
+                        wr, wi = _wedge_pre(ert[e], ekc[e], eks[e], phi, bph2c[e, g],
+                                            bph2s[e, g],
                                             bphnc[e, g], bphns[e, g], bphi0[c, e], q2c[c, e],
                                             q2s[c, e], qnc[c, e], qns[c, e], bn[c, e],
                                             cfg_cpn[e, g], cfg_spn[e, g], cfg_tabc[e, g],
@@ -385,10 +453,19 @@ if HAVE_NUMBA:
                     pi_ = eph_i[c, e]
                     ur += pr * wr - pi_ * wi
                     ui += pr * wi + pi_ * wr
+                    if damp:
+                        tar[nt] = pr * wr - pi_ * wi
+                        tai[nt] = pr * wi + pi_ * wr
+                        tps[nt] = rr[e] + ept[c, e]
+                        tpa[nt] = epa[c, e]
+                        nt += 1
                 if mode == 1:
                     field[c, p] = complex(ur, ui)
                 else:
-                    q = ur * ur + ui * ui
+                    if damp and nt > 1:
+                        q = _cell_energy(tar, tai, tps, tpa, nt, hda[c], hdk[c])
+                    else:
+                        q = ur * ur + ui * ui
                     e0p += w[c] * q
                     e2p += wf2[c] * q
                     if q > 0:
@@ -430,7 +507,7 @@ if HAVE_NUMBA:
 
 
 def semi_infinite_fused(x, y, k, alpha):
-    """Sommerfeld's solution at local points (flattened), compiled; see
+    r"""Sommerfeld's solution at local points (flattened), compiled; see
     :func:`harbor.solver.kernels.sommerfeld.semi_infinite` for the formula.
 
     Parameters
