@@ -116,14 +116,14 @@ def scenario_at(spacing):
                                                             ground_spacing=None))
 
 
-def time_solve(sc, old):
+def time_solve(sc, old, method="screening"):
     rows = []
     for sea in sc.seas:
         _clock.clear()
         _calls.clear()
         with code(old):
             t0 = time.perf_counter()
-            harbor.solve(sc, sea=sea.name)
+            harbor.solve(sc, sea=sea.name, method=method)
             wall = time.perf_counter() - t0
         parts = {s: _clock[s] for s in STAGES}
         parts["rest"] = wall - sum(parts.values())
@@ -131,7 +131,7 @@ def time_solve(sc, old):
     return rows
 
 
-def time_map(sc, old):
+def time_map(sc, old, method="screening"):
     _clock.clear()
     _calls.clear()
     with code(old), tempfile.TemporaryDirectory() as tmp:
@@ -143,7 +143,7 @@ def time_map(sc, old):
                 mod.arm_mask = _timed("arm_mask", lambda r, _f=real: (_read._ARM_MASKS.clear(),
                                                                        _f(r))[1])
         t0 = time.perf_counter()
-        ds = harbor.solve(sc)
+        ds = harbor.solve(sc, method=method)
         t1 = time.perf_counter()
         _export.write_all(ds, tmp)
         t2 = time.perf_counter()
@@ -169,6 +169,9 @@ def main(argv=None):
                     help="also time harbor climate on the demo table, old and new")
     ap.add_argument("--blas", action="store_true",
                     help="also time the new random seas with BLAS at its default threads")
+    ap.add_argument("--method", default="screening",
+                    help="method of every sea state (default screening: the kernels timed "
+                         "here; auto: what the demo's commands do, the full-field method)")
     args = ap.parse_args(argv)
     import os
 
@@ -176,16 +179,16 @@ def main(argv=None):
     # compile and warm every kernel once (numba caches to disk; this loads them)
     warm = scenario_at(40.0)
     for old in (True, False):
-        time_solve(warm, old)
+        time_solve(warm, old, args.method)
     if not args.no_map:
-        time_map(warm, False)       # first use of matplotlib, fonts, GDAL drivers
-    print(f"load average at start: {os.getloadavg()[0]:.1f}")
+        time_map(warm, False, args.method)       # first use of matplotlib, fonts, GDAL drivers
+    print(f"method: {args.method}; load average at start: {os.getloadavg()[0]:.1f}")
     for h in args.spacing:
         sc = scenario_at(h)
         gx = grid_coordinates(sc.grid)
         print(f"\n== demo at {h:g} m: {gx[0].size} x {gx[1].size} nodes ==")
         runs = [False] + ([True] if h >= args.old_up_to else [])
-        res = {old: time_solve(sc, old) for old in runs}
+        res = {old: time_solve(sc, old, args.method) for old in runs}
         print(f"{'sea':14s} {'kind':8s} {'code':4s} {'wall s':>8s} {'general':>8s} "
               f"{'gap':>7s} {'geom':>7s} {'rest':>7s} {'speed-up':>8s}")
         for i, (name, kind, wall, parts) in enumerate(res[False]):
@@ -199,14 +202,14 @@ def main(argv=None):
             saved = _compiled.SOLVER_BLAS_THREADS
             _compiled.SOLVER_BLAS_THREADS = None
             try:
-                for name, kind, wall, parts in time_solve(sc, False):
+                for name, kind, wall, parts in time_solve(sc, False, args.method):
                     if kind == "random":
                         print(f"{name:14s} {kind:8s} new, BLAS default threads: {wall:.2f} s")
             finally:
                 _compiled.SOLVER_BLAS_THREADS = saved
         if not args.no_map:
             for old in runs:
-                tot, ts, to, n_mask, t_mask = time_map(sc, old)
+                tot, ts, to, n_mask, t_mask = time_map(sc, old, args.method)
                 print(f"harbor map ({'old' if old else 'new'}): {tot:.1f} s = solve {ts:.1f} s "
                       f"+ outputs {to:.1f} s (arm mask: {n_mask} calls, {t_mask:.2f} s)")
         print(f"load average now: {os.getloadavg()[0]:.1f}")

@@ -154,13 +154,20 @@ def inside_land(px, py, layout):
 
 def distance_to_arms(px, py, layout):
     """Shortest distance (m) from each point to any arm."""
-    import shapely
-
-    d = np.full(np.shape(px), np.inf)
+    px = np.asarray(px, float)
+    py = np.asarray(py, float)
+    d2 = np.full(np.broadcast(px, py).shape, np.inf)
+    # point-segment distances in numpy: building a shapely point per grid node costs more
+    # than the distances themselves
     for arm in layout.arms:
-        pts = shapely.points(px, py)
-        d = np.minimum(d, shapely.distance(arm.geometry, pts))
-    return d
+        line = np.asarray(arm.line, float)
+        for (ax, ay), (bx, by) in zip(line[:-1], line[1:]):
+            ex, ey = bx - ax, by - ay
+            ee = ex * ex + ey * ey
+            t = ((px - ax) * ex + (py - ay) * ey) / ee if ee > 0 else np.zeros_like(d2)
+            t = np.clip(t, 0.0, 1.0)
+            d2 = np.minimum(d2, (px - ax - t * ex) ** 2 + (py - ay - t * ey) ** 2)
+    return np.sqrt(d2)
 
 
 def diffracting_edges(layout):
