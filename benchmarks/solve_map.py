@@ -21,25 +21,30 @@ count (``SOLVER_BLAS_THREADS = None``) and the arm mask recomputed at each call.
 are skipped above ``--old-up-to`` m (at 1.25 m the old random seas take minutes each).
 ``--blas`` also times the new random seas with BLAS left at its default threads.
 
-Measured (``--climate``; 2-core machine shared with other jobs, load average 6-9 during
-the run, so absolute times are inflated and noisy; old and new in the same process):
+Measured (``--climate --blas``, method screening; quiet 2-core machine, load 0.6-1.8;
+old and new in the same process):
 
     spacing  sea          old s   new s  speed-up  (new: general / gap / geometry / rest)
-    5 m      storm N       64.6    9.2    7.0x     7.1 / 0.5 / 0.2 / 1.4
-    5 m      ocean swell   76.7    8.7    8.9x     6.8 / 0.6 / 0.2 / 1.0
-    2.5 m    storm N      103.1   21.9    4.7x    18.9 / 0.9 / 0.6 / 1.6
-    2.5 m    ocean swell  114.7   20.6    5.6x    17.1 / 1.0 / 0.6 / 1.9
-    1.25 m   storm N          -   94.0            82.0 / 3.6 / 2.9 / 5.4
-    1.25 m   ocean swell      -   79.9            70.0 / 3.9 / 2.3 / 3.7
-    harbor map 5 m: old 101.7 s (solve 91.5), new 76.4 s (solve 48.6; the new run came
-    first and paid the writers' first use, since warmed); 2.5 m: old 248.4 s (solve
-    225.1, arm mask 7.8 s), new 75.9 s (solve 61.1, arm mask 0.15 s); 1.25 m: new 213.6 s
-    (solve 185.6). The regular sea is solved full-field (13-25 s, unchanged).
-    harbor climate, demo table: old 26.9 / 22.2 s, new 4.8 / 5.1 s.
+    5 m      storm N        7.68    2.06    3.7x     1.83 / 0.11 / 0.06 / 0.06
+    5 m      ocean swell    8.25    2.01    4.1x     1.76 / 0.13 / 0.06 / 0.06
+    2.5 m    storm N       30.49    7.54    4.0x     6.76 / 0.38 / 0.23 / 0.16
+    2.5 m    ocean swell   31.34    7.42    4.2x     6.51 / 0.47 / 0.26 / 0.18
+    1.25 m   storm N           -   28.31             25.25 / 1.44 / 1.09 / 0.54
+    1.25 m   ocean swell       -   28.27             24.60 / 1.94 / 1.09 / 0.65
+    new random seas with BLAS at its default threads: 2.63 / 2.76 s (5 m), 8.12 / 8.50 s
+    (2.5 m), 28.76 / 28.22 s (1.25 m).
+    harbor map 5 m: old 21.4 s (solve 16.6), new 8.0 s (solve 4.1, outputs 3.9);
+    2.5 m: old 70.1 s (solve 62.6, arm mask 2.4 s), new 20.2 s (solve 14.8);
+    1.25 m: new 67.1 s (solve 56.5, outputs 10.6).
+    harbor climate, demo table: old 19.7 s, new 9.4 s.
 
-The old path scales better with the grid than with the number of calls, so the speed-up
-falls with finer grids: what is left is the fused kernel itself, about 200 ns per point
-and component on the demo (two bends, two heads, four faces, eight obstacle segments).
+Against the measurement that opened the work (18.0 / 18.8 s at 5 m, 60.8 / 61.6 s at
+2.5 m, 214 / 218 s at 1.25 m, a busier machine) the new random seas are 8.7x / 9.4x,
+8.1x / 8.3x and 7.6x / 7.7x faster. What is left is the fused kernel itself, about
+130 ns per point and component on two threads on the demo (two bends, two heads, four
+faces, ten obstacle segments). Single-thread shares (measured by
+switching parts of the kernel off, 5 m grid): incident-wave ray tests 48 ns, reflections 43 ns, the two bends'
+wedge terms 74 ns, the two heads 33 ns, the cell-averaged interference 36 ns.
 """
 
 import argparse
