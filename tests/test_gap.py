@@ -175,6 +175,17 @@ def test_auto_threshold():
     assert np.array_equal(harbor.gap(X, Y, L, 80, L), gap_exact(X, Y, L, 80, L))
 
 
+def test_auto_falls_back_to_the_superposition_where_the_exact_solution_cannot_fit():
+    # A gap of 2000 L met at 0.05 deg: projected width 1.7 L, but the exact solution
+    # would need more than its memory limit; before, auto chose it and raised.
+    from harbor.solver.kernels.gap import MAX_EXACT_BYTES, exact_memory
+
+    assert exact_memory(L, 2000 * L) > MAX_EXACT_BYTES
+    assert auto_method(L, 0.05, 2000 * L) == "superposition"
+    u = harbor.gap(np.array([0.0]), np.array([50 * L]), L, 0.05, 2000 * L)
+    assert np.all(np.isfinite(u))
+
+
 def test_bad_arguments():
     with pytest.raises(ValueError):
         harbor.gap(0, 1, L, 90, 0.0)

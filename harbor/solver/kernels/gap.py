@@ -357,6 +357,9 @@ def gap_exact(x, y, wavelength, direction, width, nodes=None):
 def auto_method(wavelength, direction, width) -> str:
     """The method ``gap(method="auto")`` chooses: ``"exact"`` or ``"superposition"``.
 
+    Exact when the projected width B sin(alpha) / L is below :data:`AUTO_EXACT_BELOW` and
+    the exact solution fits in :data:`MAX_EXACT_BYTES` (:func:`exact_memory`).
+
     Parameters
     ----------
     wavelength : float
@@ -368,6 +371,10 @@ def auto_method(wavelength, direction, width) -> str:
     """
     alpha = check_direction(direction)
     projected = float(width) * np.sin(alpha) / float(wavelength)
+    if exact_memory(wavelength, width) > MAX_EXACT_BYTES:
+        # near-grazing waves on a gap of hundreds of wavelengths (the short bands of a
+        # random sea): the exact solution does not fit, the superposition is accurate
+        return "superposition"
     return "exact" if projected < AUTO_EXACT_BELOW else "superposition"
 
 
