@@ -359,6 +359,9 @@ class HarbourModel:
         self._h0_given = h0
         self._periods = {}
         self._domains = {}
+        # estimates depend on the model and the period only: planning a climate asks for
+        # the same periods (and the same capped-period bisection) once per task
+        self._estimates = {}
         self.notices = []
         self._noted = set()
 
@@ -763,7 +766,14 @@ class HarbourModel:
 
     # -- cost ----------------------------------------------------------------------
     def _unknowns_estimate(self, period, samples=250):
-        """Unknowns of the mesh of one period, from the domain and the local wavelength."""
+        """Unknowns of the mesh of one period, from the domain and the local wavelength
+        (cached per period)."""
+        key = ("n", round(float(period), 9), int(samples))
+        if key not in self._estimates:
+            self._estimates[key] = self._unknowns_raster(period, samples)
+        return self._estimates[key]
+
+    def _unknowns_raster(self, period, samples):
         dom = self._domain(period)
         x0, y0, x1, y1 = dom.layer.outer
         nx = ny = int(samples)
@@ -790,7 +800,14 @@ class HarbourModel:
         return n
 
     def _capped_period(self, max_unknowns, longest):
-        """The shortest period (s) whose mesh stays within ``max_unknowns`` (bisection)."""
+        """The shortest period (s) whose mesh stays within ``max_unknowns`` (bisection,
+        cached)."""
+        key = ("cap", float(max_unknowns), round(float(longest), 9))
+        if key not in self._estimates:
+            self._estimates[key] = self._capped_period_search(max_unknowns, longest)
+        return self._estimates[key]
+
+    def _capped_period_search(self, max_unknowns, longest):
         lo, hi = 0.05 * longest, longest  # lo too short (too many unknowns), hi fits
         if self._unknowns_estimate(hi) > max_unknowns:
             return hi
