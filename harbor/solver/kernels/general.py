@@ -118,6 +118,25 @@ if HAVE_NUMBA:
         return False
 
     @numba.njit(cache=True, inline="always", error_model="numpy")
+    def _ray_hit_cw(px, py, vx, vy, sx, sy, cw, den, par, open0, open1, scale):
+        """_ray_hit_pre with the point's cross products with the segments (``cw``, which
+        do not depend on the direction) precomputed: the incident wave's test."""
+        for i in range(sx.size):
+            if par[i]:
+                continue
+            t = cw[i] * den[i]
+            if not t > _EPS * scale:
+                continue
+            wx = sx[i] - px
+            wy = sy[i] - py
+            s = (wx * vy - wy * vx) * den[i]
+            lo = (s > _EPS) if open0[i] else (s >= -_EPS)
+            hi = (s < 1 - _EPS) if open1[i] else (s <= 1 + _EPS)
+            if lo and hi:
+                return True
+        return False
+
+    @numba.njit(cache=True, inline="always", error_model="numpy")
     def _path_hit(px, py, qx, qy, sx, sy, sex, sey, slen, skip):
         """harbor.geometry.visibility.segment_blocked for one path P-Q."""
         dx = qx - px
@@ -238,12 +257,6 @@ if HAVE_NUMBA:
         return (ckr * tr - skr * ti) * f, (ckr * ti + skr * tr) * f
 
     @numba.njit(cache=True, inline="always", error_model="numpy")
-    def _sinc(x):
-        if abs(x) < 1e-4:
-            return 1.0 - x * x / 6.0
-        return _cis(x, _CIS_TAB)[1] / x
-
-    @numba.njit(cache=True, inline="always", error_model="numpy")
     def _cell_energy(ar, ai, ps, pa, nt, ha, hk):
         """|sum of waves|^2 with each cross term averaged over the component's cell:
         sum |a_m|^2 + 2 sum_(m<n) Re(a_m conj a_n) sinc(ha dpa) sinc(hk dps). The sinc
@@ -255,7 +268,22 @@ if HAVE_NUMBA:
             for j in range(m + 1, nt):
                 cross = ar[m] * ar[j] + ai[m] * ai[j]
                 if cross != 0.0:
-                    q += 2.0 * cross * _sinc(ha * (pa[m] - pa[j])) * _sinc(hk * (ps[m] - ps[j]))
+                    # sinc(xa) sinc(xk) with one division
+                    xa = ha * (pa[m] - pa[j])
+                    xk = hk * (ps[m] - ps[j])
+                    num = 1.0
+                    den = 1.0
+                    if abs(xa) < 1e-4:
+                        num = 1.0 - xa * xa / 6.0
+                    else:
+                        num = _cis(xa, _CIS_TAB)[1]
+                        den = xa
+                    if abs(xk) < 1e-4:
+                        num *= 1.0 - xk * xk / 6.0
+                    else:
+                        num *= _cis(xk, _CIS_TAB)[1]
+                        den *= xk
+                    q += 2.0 * cross * num / den
         return q
 
     @numba.njit(**_jit)
@@ -324,9 +352,12 @@ if HAVE_NUMBA:
         ekc = np.empty(ne)
         eks = np.empty(ne)
         ert = np.empty(ne)
+        cw = np.empty(m)
         for p in range(n):
             x = px[p]
             y = py[p]
+            for i in range(m):
+                cw[i] = (sx[i] - x) * sey[i] - (sy[i] - y) * sex[i]
             # what depends on the point only: its place relative to every edge
             for e in range(ne):
                 rx = x - tipx[e]
@@ -369,8 +400,8 @@ if HAVE_NUMBA:
                 damp = mode == 0 and (hda[c] != 0.0 or hdk[c] != 0.0)
                 nt = 0
                 # incident wave
-                if not _ray_hit_pre(x, y, vx, vy, sx, sy, sex, sey, den[c], par[c], open0,
-                                    open1, -1, ray_scale):
+                if not _ray_hit_cw(x, y, vx, vy, sx, sy, cw, den[c], par[c], open0, open1,
+                                   ray_scale):
                     ps = x * dx[c] + y * dy[c]
                     cr, ci = _cis(k * ps, _CIS_TAB)
                     ur += cr
