@@ -154,13 +154,33 @@ def inside_land(px, py, layout):
 
 def distance_to_arms(px, py, layout):
     """Shortest distance (m) from each point to any arm."""
+    return distance_to_lines(px, py, [arm.line for arm in layout.arms])
+
+
+def distance_to_lines(px, py, lines):
+    """Shortest distance from each point to any of some polylines (same units).
+
+    Parameters
+    ----------
+    px, py : numpy.ndarray
+        Points, broadcastable.
+    lines : sequence of array_like
+        Polylines, each (n, 2) with n >= 1.
+
+    Returns
+    -------
+    numpy.ndarray
+        Distances, inf when there is no line.
+    """
     px = np.asarray(px, float)
     py = np.asarray(py, float)
     d2 = np.full(np.broadcast(px, py).shape, np.inf)
     # point-segment distances in numpy: building a shapely point per grid node costs more
     # than the distances themselves
-    for arm in layout.arms:
-        line = np.asarray(arm.line, float)
+    for line in lines:
+        line = np.asarray(line, float).reshape(-1, 2)
+        if line.shape[0] == 1:
+            line = np.vstack([line, line])
         for (ax, ay), (bx, by) in zip(line[:-1], line[1:]):
             ex, ey = bx - ax, by - ay
             ee = ex * ex + ey * ey

@@ -26,6 +26,7 @@ import pyproj
 import shapely
 
 from harbor.cautions import result_cautions, result_short_caution
+from harbor.geometry.visibility import distance_to_lines
 from harbor.outputs._atomic import atomic_path, unique_slugs
 from harbor.outputs.read import arm_mask, layout_shapes
 from harbor.outputs.style import method_reason
@@ -136,7 +137,7 @@ def _near_arms(x, y, arms, dist):
                                                                         "right")))
     X, Y = np.meshgrid(x[ix], y[iy])
     if X.size:
-        mask[iy, ix] = shapely.dwithin(geom, shapely.points(X, Y), dist)
+        mask[iy, ix] = distance_to_lines(X, Y, arms) <= dist
     return mask, geom
 
 

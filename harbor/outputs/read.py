@@ -14,6 +14,7 @@ import numpy as np
 import shapely
 
 from harbor.errors import InputError
+from harbor.geometry.visibility import distance_to_lines
 from harbor.outputs.style import sea_label
 
 
@@ -172,10 +173,7 @@ def arm_mask(result) -> np.ndarray:
         mask = np.zeros((y.size, x.size), bool)
     else:
         X, Y = np.meshgrid(x, y)
-        geom = shapely.MultiLineString(arms)
-        shapely.prepare(geom)
-        mask = shapely.dwithin(geom, shapely.points(X, Y),
-                               cell_size(x, y) / math.sqrt(2.0) * 1.001)
+        mask = distance_to_lines(X, Y, arms) <= cell_size(x, y) / math.sqrt(2.0) * 1.001
     mask.setflags(write=False)
     if len(_ARM_MASKS) >= 4:
         _ARM_MASKS.pop(next(iter(_ARM_MASKS)))
