@@ -72,7 +72,7 @@ from harbor.solver.kernels import sommerfeld as _somm
 STAGES = {
     "general": ["general_field", "general_components"],
     "gap": ["gap_exact_energy", "gap_superposition", "gap_field", "gap_exact_many"],
-    "geometry": ["head_visibility", "basin_mask", "entrance_blend"],
+    "geometry": ["cached_head_visibility", "basin_mask", "entrance_blend"],
 }
 
 _clock = defaultdict(float)

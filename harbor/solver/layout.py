@@ -323,6 +323,41 @@ def head_visibility(layout, px, py, segments=None):
             for v, _ in diffracting_edges(layout)]
 
 
+_VISIBILITY: dict = {}
+
+
+def cached_head_visibility(layout, px, py, segments=None):
+    """:func:`head_visibility`, kept for the last four point sets and layouts.
+
+    The sea states of one solve, and the frequency bands of a random sea whose
+    components see an arm edge-on (solved without it), ask again for the same points and
+    layout; visibility does not depend on the waves. The arrays returned are read-only.
+    """
+    import hashlib
+
+    if segments is None:
+        segments = layout_segments(layout)
+    px = np.ascontiguousarray(px, float)
+    py = np.ascontiguousarray(py, float)
+    h = hashlib.sha1(px.tobytes() + b"|" + py.tobytes())
+    h.update(np.ascontiguousarray(segments[0], float).tobytes())
+    h.update(np.ascontiguousarray(segments[2], bool).tobytes())
+    for tip, dirs in diffracting_edges(layout):
+        h.update(np.asarray(tip, float).tobytes())
+        for d in dirs:
+            h.update(np.asarray(d, float).tobytes())
+    key = h.hexdigest()
+    hit = _VISIBILITY.get(key)
+    if hit is None:
+        hit = head_visibility(layout, px, py, segments)
+        for v in hit:
+            v.setflags(write=False)
+        if len(_VISIBILITY) >= 4:
+            _VISIBILITY.pop(next(iter(_VISIBILITY)))
+        _VISIBILITY[key] = hit
+    return hit
+
+
 def bend_sector(dirs, up_angle):
     """The water sector of a bend that the waves strike.
 
@@ -792,7 +827,7 @@ def general_components(layout, px, py, wavelengths, alphas, weights=None, fweigh
             lay = Layout(arms=tuple(a for i, a in enumerate(layout.arms) if i not in key),
                          lands=layout.lands)
             segs = layout_segments(lay)
-            vis = head_visibility(lay, px, py, segs)
+            vis = cached_head_visibility(lay, px, py, segs)
         else:
             lay = layout
             segs = segments if segments is not None else layout_segments(layout)

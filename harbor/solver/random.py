@@ -23,8 +23,8 @@ from harbor.solver.layout import (
     entrance_frames,
     gap_field,
     general_components,
+    cached_head_visibility,
     general_field,
-    head_visibility,
 )
 from harbor.solver.kernels._compiled import HAVE_NUMBA, blas_limited
 from harbor.solver.kernels.gap import gap_exact_many
@@ -115,34 +115,6 @@ def spectral_cells(frequency, angle, depth, g=9.81):
     return dalpha, dk
 
 
-_VISIBILITY: dict = {}
-
-
-def _visibility(layout, xf, yf, segments):
-    """:func:`harbor.solver.layout.head_visibility`, kept for the last two point sets and
-    layouts: the sea states of one solve share the grid, and visibility does not depend
-    on the waves."""
-    import hashlib
-
-    from harbor.geometry.visibility import diffracting_edges
-
-    h = hashlib.sha1(xf.tobytes() + b"|" + yf.tobytes())
-    h.update(np.ascontiguousarray(segments[0], float).tobytes())
-    h.update(np.ascontiguousarray(segments[2], bool).tobytes())
-    for tip, dirs in diffracting_edges(layout):
-        h.update(np.asarray(tip, float).tobytes())
-    key = h.hexdigest()
-    hit = _VISIBILITY.get(key)
-    if hit is None:
-        hit = head_visibility(layout, xf, yf, segments)
-        for v in hit:
-            v.setflags(write=False)
-        if len(_VISIBILITY) >= 2:
-            _VISIBILITY.pop(next(iter(_VISIBILITY)))
-        _VISIBILITY[key] = hit
-    return hit
-
-
 def _progress_noop(done, total):
     return None
 
@@ -221,7 +193,7 @@ def _random_sea_field(layout, px, py, components, depth, principal_alpha, g, met
     e2 = np.zeros(xf.size)
     layout, _ = active_layout(layout)      # arms wholly on land do nothing
     segments = layout_segments(layout)
-    visible_all = _visibility(layout, xf, yf, segments)
+    visible_all = cached_head_visibility(layout, xf, yf, segments)
     bands = np.unique(freq)
     if fused and CELL_AVERAGED:
         cell_a, cell_k = spectral_cells(freq, angle, depth, g)

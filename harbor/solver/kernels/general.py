@@ -74,6 +74,13 @@ if HAVE_NUMBA:
         return a, np.sqrt(rm), r
 
     @numba.njit(cache=True, inline="always", error_model="numpy")
+    def _within(s, open0, open1):
+        """Whether the ray meets the segment at its parameter s (an open end excluded)."""
+        lo = (s > _EPS) if open0 else (s >= -_EPS)
+        hi = (s < 1 - _EPS) if open1 else (s <= 1 + _EPS)
+        return lo and hi
+
+    @numba.njit(cache=True, inline="always", error_model="numpy")
     def _ray_hit(px, py, vx, vy, seg, open0, open1, skip, scale):
         """harbor.geometry.visibility.ray_blocked for one point (segment ``skip`` left out)."""
         for i in range(seg.shape[0]):
@@ -92,9 +99,7 @@ if HAVE_NUMBA:
             if not t > _EPS * scale:
                 continue
             s = (wx * vy - wy * vx) / den
-            lo = (s > _EPS) if open0[i] else (s >= -_EPS)
-            hi = (s < 1 - _EPS) if open1[i] else (s <= 1 + _EPS)
-            if lo and hi:
+            if _within(s, open0[i], open1[i]):
                 return True
         return False
 
@@ -111,9 +116,7 @@ if HAVE_NUMBA:
             if not t > _EPS * scale:
                 continue
             s = (wx * vy - wy * vx) * den[i]
-            lo = (s > _EPS) if open0[i] else (s >= -_EPS)
-            hi = (s < 1 - _EPS) if open1[i] else (s <= 1 + _EPS)
-            if lo and hi:
+            if _within(s, open0[i], open1[i]):
                 return True
         return False
 
@@ -130,9 +133,7 @@ if HAVE_NUMBA:
             wx = sx[i] - px
             wy = sy[i] - py
             s = (wx * vy - wy * vx) * den[i]
-            lo = (s > _EPS) if open0[i] else (s >= -_EPS)
-            hi = (s < 1 - _EPS) if open1[i] else (s <= 1 + _EPS)
-            if lo and hi:
+            if _within(s, open0[i], open1[i]):
                 return True
         return False
 
