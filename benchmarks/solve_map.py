@@ -21,31 +21,31 @@ count (``SOLVER_BLAS_THREADS = None``) and the arm mask recomputed at each call.
 are skipped above ``--old-up-to`` m (at 1.25 m the old random seas take minutes each).
 ``--blas`` also times the new random seas with BLAS left at its default threads.
 
-Measured (``--climate --blas``, method screening; quiet 2-core machine, load 0.6-1.8;
-old and new in the same process):
+Measured (``--climate --blas``, method screening; quiet 2-core machine, load 1.6-1.9;
+old and new in the same process; the geometry shared by both paths is the new one):
 
     spacing  sea          old s   new s  speed-up  (new: general / gap / geometry / rest)
-    5 m      storm N        7.68    2.06    3.7x     1.83 / 0.11 / 0.06 / 0.06
-    5 m      ocean swell    8.25    2.01    4.1x     1.76 / 0.13 / 0.06 / 0.06
-    2.5 m    storm N       30.49    7.54    4.0x     6.76 / 0.38 / 0.23 / 0.16
-    2.5 m    ocean swell   31.34    7.42    4.2x     6.51 / 0.47 / 0.26 / 0.18
-    1.25 m   storm N           -   28.31             25.25 / 1.44 / 1.09 / 0.54
-    1.25 m   ocean swell       -   28.27             24.60 / 1.94 / 1.09 / 0.65
-    new random seas with BLAS at its default threads: 2.63 / 2.76 s (5 m), 8.12 / 8.50 s
-    (2.5 m), 28.76 / 28.22 s (1.25 m).
-    harbor map 5 m: old 21.4 s (solve 16.6), new 8.0 s (solve 4.1, outputs 3.9);
-    2.5 m: old 70.1 s (solve 62.6, arm mask 2.4 s), new 20.2 s (solve 14.8);
-    1.25 m: new 67.1 s (solve 56.5, outputs 10.6).
-    harbor climate, demo table: old 19.7 s, new 9.4 s; after the full-field estimates
-    were cached per model (planning 8.1 -> 3.1 s): old 14.4 s, new 5.4 s.
+    5 m      storm N        7.57    1.75    4.3x     1.54 / 0.10 / 0.05 / 0.06
+    5 m      ocean swell    7.92    1.85    4.3x     1.62 / 0.13 / 0.04 / 0.06
+    2.5 m    storm N       29.23    6.94    4.2x     6.22 / 0.36 / 0.22 / 0.14
+    2.5 m    ocean swell   29.26    6.73    4.3x     5.99 / 0.44 / 0.13 / 0.16
+    1.25 m   storm N           -   24.92             22.28 / 1.27 / 0.88 / 0.49
+    1.25 m   ocean swell       -   24.91             22.05 / 1.70 / 0.56 / 0.59
+    new random seas with BLAS at its default threads: 2.48 / 2.53 s (5 m), 7.45 / 7.39 s
+    (2.5 m), 25.56 / 26.43 s (1.25 m).
+    harbor map 5 m: old 18.3 s (solve 14.7), new 7.6 s (solve 3.9, outputs 3.6);
+    2.5 m: old 62.4 s (solve 57.9), new 17.3 s (solve 12.9, outputs 4.4);
+    1.25 m: new 61.0 s (solve 53.6, outputs 7.4; 60.7 s in a second run).
+    harbor climate, demo table: old 13.7 / 13.5 s, new 5.2 / 4.8 s.
 
 Against the measurement that opened the work (18.0 / 18.8 s at 5 m, 60.8 / 61.6 s at
-2.5 m, 214 / 218 s at 1.25 m, a busier machine) the new random seas are 8.7x / 9.4x,
-8.1x / 8.3x and 7.6x / 7.7x faster. What is left is the fused kernel itself, about
-130 ns per point and component on two threads on the demo (two bends, two heads, four
-faces, ten obstacle segments). Single-thread shares (measured by
-switching parts of the kernel off, 5 m grid): incident-wave ray tests 48 ns, reflections 43 ns, the two bends'
-wedge terms 74 ns, the two heads 33 ns, the cell-averaged interference 36 ns.
+2.5 m, 214 / 218 s at 1.25 m, a busier machine) the new random seas are 10.3x / 10.2x,
+8.8x / 9.2x and 8.6x / 8.75x faster. What is left is the fused kernel itself, about
+110-120 ns per point and component on two threads on the demo (two bends, two heads,
+four faces, ten obstacle segments). Single-thread shares (measured by switching parts
+of the kernel off, 5 m grid): incident-wave ray tests 44 ns, reflections about 45 ns,
+the two bends' wedge terms about 75 ns, the two heads about 35 ns, the cell-averaged
+interference about 40 ns.
 """
 
 import argparse
