@@ -166,6 +166,13 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
     with w the components' energy fractions (:math:`T_{m02} = \sqrt{m_0/m_2}`). A component
     that cannot reach a point from open water contributes nothing there.
 
+    With :data:`CELL_AVERAGED` (the default) each component of the general method stands
+    for its cell of the spectrum (:func:`spectral_cells`): the cross terms of its waves
+    are integrated over the cell by Filon's rule
+    (:func:`harbor.solver.layout.general_components`), so standing waves that a fixed set
+    of components only samples average out as in the continuous integral. The exact gap
+    solution inside a classic entrance keeps its components as regular seas.
+
     References
     ----------
     .. [1] Goda, Y., Takayama, T., & Suzuki, Y. (1978). Diffraction diagrams for
@@ -173,6 +180,8 @@ def random_sea_field(layout, px, py, components, depth, principal_alpha, g=9.81,
        Engineering*, ASCE, 628-650.
     .. [2] Goda, Y. (2010). *Random Seas and Design of Maritime Structures* (3rd ed.).
        World Scientific, sect. 3.2.
+    .. [3] Filon, L. N. G. (1928). On a quadrature formula for trigonometric integrals.
+       *Proc. R. Soc. Edinburgh*, 49, 38-47.
     """
     with blas_limited():
         return _random_sea_field(layout, px, py, components, depth, principal_alpha, g,
