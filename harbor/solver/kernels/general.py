@@ -451,7 +451,6 @@ if HAVE_NUMBA:
                     if not elit[c, e] or not vis[e, p]:
                         continue
                     if kind[e] == 1:
-                        r = rr[e]
                         ch = chp[e]
                         if eysgn[c, e] * yl0[e] > 0.0:
                             ch = -ch
